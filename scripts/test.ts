@@ -1,0 +1,92 @@
+/**
+ * `npm test`: every gate, in the order that fails fastest. Starts one throwaway PostgreSQL cluster on loopback
+ * (a fresh temp directory, a free port), gives each test layer its own database, and always stops and deletes it.
+ *   1. static gates: ESLint, Prettier, svelte-check (types + Svelte warnings)
+ *   2. vitest: unit (pure modules) and integration (real PostgreSQL, migrations applied)
+ *   3. vite build, then Playwright on the built app in Debian's Chromium
+ * `npm test -- --skip-static` or `--only=unit|integration|e2e` narrow it while working.
+ */
+import { spawn } from 'node:child_process';
+import { chmod, mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { migrate } from './lib/migrate';
+import { runDemoSeed } from './lib/demo-seed';
+import { freePort, startCluster, stopCluster } from './lib/postgres';
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
+const bin = (name: string) => join(root, 'node_modules', '.bin', name);
+const args = process.argv.slice(2);
+const only = args.find((a) => a.startsWith('--only='))?.slice(7);
+const wants = (layer: string) => !only || only.split(',').includes(layer);
+
+function run(label: string, cmd: string, cmdArgs: string[], env: NodeJS.ProcessEnv = {}): Promise<void> {
+	const started = Date.now();
+	console.log(`\n▶ ${label}`);
+	return new Promise((ok, fail) => {
+		const child = spawn(cmd, cmdArgs, { cwd: root, stdio: 'inherit', env: { ...process.env, ...env } });
+		child.on('exit', (code) => {
+			const secs = ((Date.now() - started) / 1000).toFixed(1);
+			if (code === 0) {
+				console.log(`✔ ${label} (${secs} s)`);
+				ok();
+			} else fail(new Error(`${label} failed (exit ${code}) after ${secs} s`));
+		});
+	});
+}
+
+async function main() {
+	if (!args.includes('--skip-static') && !only) {
+		await run('svelte-kit sync', bin('svelte-kit'), ['sync']);
+		await run('ESLint', bin('eslint'), ['.', '--max-warnings', '0']);
+		await run('Prettier', bin('prettier'), ['--check', '.']);
+		await run('svelte-check', bin('svelte-check'), ['--tsconfig', './tsconfig.json', '--fail-on-warnings', '--threshold', 'warning']);
+	}
+	if (wants('unit')) await run('unit tests', bin('vitest'), ['run', '--project', 'unit']);
+	if (!wants('integration') && !wants('e2e')) return;
+
+	const baseDir = await mkdtemp(join(tmpdir(), 'benchstamp-npm-test-'));
+	await chmod(baseDir, 0o755); // the postgres OS user must traverse it when we run as root
+	try {
+		const port = await freePort();
+		const cluster = (database: string) => startCluster({ baseDir, port, database, ephemeral: true });
+		if (wants('integration')) {
+			const db = await cluster('benchstamp_test');
+			await run('integration tests (PostgreSQL)', bin('vitest'), ['run', '--project', 'integration'], {
+				TEST_DATABASE_URL: db.appUrl,
+				TEST_OWNER_DATABASE_URL: db.ownerUrl,
+				TEST_SUPERUSER_DATABASE_URL: db.superuserUrl
+			});
+		}
+		if (wants('e2e')) {
+			const demo = await cluster('benchstamp_e2e');
+			await migrate(demo.ownerUrl, demo.appUrl);
+			await runDemoSeed(demo.appUrl);
+			const prod = await cluster('benchstamp_prod');
+			await migrate(prod.ownerUrl, prod.appUrl);
+			await run('vite build', process.execPath, [join(root, 'node_modules', 'vite', 'bin', 'vite.js'), 'build']);
+			await run('browser tests (Playwright, Chromium)', bin('playwright'), ['test'], {
+				E2E_DATABASE_URL: demo.appUrl,
+				E2E_OWNER_DATABASE_URL: demo.ownerUrl,
+				E2E_PROD_DATABASE_URL: prod.appUrl,
+				E2E_PROD_OWNER_DATABASE_URL: prod.ownerUrl,
+				E2E_MAIL_DIR: join(baseDir, 'mail'),
+				E2E_APP_PORT: String(await freePort()),
+				E2E_PROD_PORT: String(await freePort()),
+				E2E_SMTP_PORT: String(await freePort())
+			});
+		}
+	} finally {
+		await stopCluster(baseDir).catch((e: unknown) => console.error('could not stop the test cluster:', e));
+		await rm(baseDir, { recursive: true, force: true });
+	}
+}
+
+main().then(
+	() => console.log('\nAll gates passed.'),
+	(e: unknown) => {
+		console.error(`\n✘ ${e instanceof Error ? e.message : String(e)}`);
+		process.exit(1);
+	}
+);

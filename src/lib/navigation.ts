@@ -1,0 +1,24 @@
+import type { RoleName } from './accounts/schema';
+
+export interface NavItem {
+	href: string;
+	label: string;
+	icon?: string;
+	roles: readonly RoleName[];
+	demoOnly?: boolean;
+}
+
+/** Every destination in the app bar. The server enforces access; this only decides what each person sees. */
+export const NAV: readonly NavItem[] = [
+	{ href: '/bench', label: 'Bench', icon: 'wrench', roles: ['technician', 'lead'] },
+	{ href: '/library', label: 'Procedures', icon: 'book', roles: ['lead', 'quality', 'admin'] },
+	{ href: '/quality', label: 'Quality', icon: 'shield', roles: ['quality'] },
+	{ href: '/admin/people', label: 'People', icon: 'users', roles: ['admin'] },
+	{ href: '/admin/log', label: 'Admin log', icon: 'list', roles: ['admin'] },
+	{ href: '/dev/outbox', label: 'Outbox', icon: 'mail', roles: ['admin'], demoOnly: true },
+	{ href: '/account', label: 'My account', icon: 'user', roles: ['technician', 'lead', 'quality', 'admin'] }
+];
+
+export function navFor(roles: readonly string[], demo: boolean): { href: string; label: string; icon?: string }[] {
+	return NAV.filter((n) => (!n.demoOnly || demo) && n.roles.some((r) => roles.includes(r))).map(({ href, label, icon }) => ({ href, label, icon }));
+}

@@ -1,0 +1,38 @@
+import { error, redirect, type RequestEvent } from '@sveltejs/kit';
+import type { RoleName } from '$lib/accounts/schema';
+import type { SessionUser } from './session-user';
+
+/** Paths anyone may open; everything else needs a signed-in person. */
+const PUBLIC_PREFIXES = ['/signin', '/welcome/', '/reset/', '/api/health'];
+
+/** Coarse rules by path prefix, checked in hooks; each route checks again with `requireRole`. */
+export const AREA_ROLES: { prefix: string; roles: RoleName[] }[] = [
+	{ prefix: '/admin', roles: ['admin'] },
+	{ prefix: '/dev/', roles: ['admin'] },
+	{ prefix: '/quality', roles: ['quality'] },
+	{ prefix: '/library', roles: ['lead', 'quality', 'admin'] },
+	{ prefix: '/bench', roles: ['technician', 'lead'] }
+];
+
+export const isPublicPath = (path: string) => PUBLIC_PREFIXES.some((p) => path === p || path.startsWith(p.endsWith('/') ? p : `${p}/`));
+
+export function areaRoles(path: string): RoleName[] | undefined {
+	return AREA_ROLES.find((a) => path === a.prefix || path.startsWith(a.prefix.endsWith('/') ? a.prefix : `${a.prefix}/`))?.roles;
+}
+
+export const hasAnyRole = (user: SessionUser | null, roles: readonly RoleName[]) => !!user && roles.some((r) => user.roles.includes(r));
+
+/** The signed-in person, or a redirect to sign-in (pages) / 401 (APIs). */
+export function requireUser(event: Pick<RequestEvent, 'locals' | 'url'>): SessionUser {
+	const user = event.locals.user;
+	if (user) return user;
+	if (event.url.pathname.startsWith('/api/')) error(401, 'Sign in first.');
+	redirect(303, `/signin?redirectTo=${encodeURIComponent(event.url.pathname + event.url.search)}`);
+}
+
+/** The signed-in person if they hold one of `roles`; otherwise 403 (or sign-in when anonymous). */
+export function requireRole(event: Pick<RequestEvent, 'locals' | 'url'>, ...roles: RoleName[]): SessionUser {
+	const user = requireUser(event);
+	if (!hasAnyRole(user, roles)) error(403, 'Your role does not allow this page.');
+	return user;
+}
