@@ -16,7 +16,14 @@ export default defineConfig({
 		baseURL: `http://localhost:${appPort}`,
 		launchOptions: {
 			executablePath: '/usr/bin/chromium',
-			args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run']
+			args: [
+				'--no-sandbox',
+				'--disable-gpu',
+				'--disable-background-networking',
+				'--disable-component-update',
+				'--disable-sync',
+				'--no-first-run'
+			]
 		},
 		trace: 'retain-on-failure'
 	},

@@ -28,7 +28,11 @@ $$;`);
 		this.addSql(`revoke all on "admin_log" from ${app};`);
 		this.addSql(`grant select, insert on "admin_log" to ${app};`);
 		this.addSql(`grant usage on sequence "admin_log_id_seq" to ${app};`);
-		this.addSql(`create trigger admin_log_append_only before update or delete on "admin_log" for each row execute function benchstamp_append_only();`);
-		this.addSql(`create trigger admin_log_no_truncate before truncate on "admin_log" for each statement execute function benchstamp_append_only();`);
+		this.addSql(
+			`create trigger admin_log_append_only before update or delete on "admin_log" for each row execute function benchstamp_append_only();`
+		);
+		this.addSql(
+			`create trigger admin_log_no_truncate before truncate on "admin_log" for each statement execute function benchstamp_append_only();`
+		);
 	}
 }

@@ -15,7 +15,15 @@
  */
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { clusterPaths, clusterStatus, clusterUrls, resetCluster, startCluster, stopCluster, type ClusterUrls } from './lib/postgres';
+import {
+	clusterPaths,
+	clusterStatus,
+	clusterUrls,
+	resetCluster,
+	startCluster,
+	stopCluster,
+	type ClusterUrls
+} from './lib/postgres';
 
 const repoRoot = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 const baseDir = join(repoRoot, '.data');
@@ -26,7 +34,8 @@ function port(): number {
 	const raw = process.env.BENCHSTAMP_PG_PORT;
 	if (raw === undefined || raw === '') return DEFAULT_PORT;
 	const value = Number(raw);
-	if (!Number.isInteger(value) || value < 1 || value > 65535) throw new Error(`BENCHSTAMP_PG_PORT=${raw} is not a port`);
+	if (!Number.isInteger(value) || value < 1 || value > 65535)
+		throw new Error(`BENCHSTAMP_PG_PORT=${raw} is not a port`);
 	return value;
 }
 

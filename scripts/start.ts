@@ -23,7 +23,12 @@ async function main() {
 	let appUrl = process.env.DATABASE_URL;
 	let ownerUrl = process.env.OWNER_DATABASE_URL ?? appUrl;
 	if (!appUrl) {
-		const urls = await startCluster({ baseDir: dataDir, port: Number(process.env.BENCHSTAMP_PG_PORT ?? 54329), database: 'benchstamp', log });
+		const urls = await startCluster({
+			baseDir: dataDir,
+			port: Number(process.env.BENCHSTAMP_PG_PORT ?? 54329),
+			database: 'benchstamp',
+			log
+		});
 		appUrl = urls.appUrl;
 		ownerUrl = urls.ownerUrl;
 		log(`PostgreSQL on 127.0.0.1:${urls.port} (data in .data/postgres)`);
@@ -58,7 +63,8 @@ async function main() {
 	log(`serving ${origin}`);
 	if (mode === 'demo') {
 		log(`demo sign-ins (password "${DEMO_PASSWORD}" for all; invented people of an invented shop):`);
-		for (const p of DEMO_PEOPLE) console.log(`    ${p.email.padEnd(22)} ${p.roles.join(', ').padEnd(12)} bench PIN ${p.pin}`);
+		for (const p of DEMO_PEOPLE)
+			console.log(`    ${p.email.padEnd(22)} ${p.roles.join(', ').padEnd(12)} bench PIN ${p.pin}`);
 		log(`captured e-mail: ${origin}/dev/outbox (as admin)`);
 	}
 }

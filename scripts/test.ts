@@ -41,7 +41,13 @@ async function main() {
 		await run('svelte-kit sync', bin('svelte-kit'), ['sync']);
 		await run('ESLint', bin('eslint'), ['.', '--max-warnings', '0']);
 		await run('Prettier', bin('prettier'), ['--check', '.']);
-		await run('svelte-check', bin('svelte-check'), ['--tsconfig', './tsconfig.json', '--fail-on-warnings', '--threshold', 'warning']);
+		await run('svelte-check', bin('svelte-check'), [
+			'--tsconfig',
+			'./tsconfig.json',
+			'--fail-on-warnings',
+			'--threshold',
+			'warning'
+		]);
 	}
 	if (wants('unit')) await run('unit tests', bin('vitest'), ['run', '--project', 'unit']);
 	if (!wants('integration') && !wants('e2e')) return;

@@ -15,7 +15,8 @@ export const init: ServerInit = async () => {
 
 /** Auth.js's own HTTP endpoints stay closed: sign-in goes only through our rate-limited action. */
 const closeAuthEndpoints: Handle = ({ event, resolve }) => {
-	if (event.url.pathname === '/auth' || event.url.pathname.startsWith('/auth/')) return new Response('Not found', { status: 404 });
+	if (event.url.pathname === '/auth' || event.url.pathname.startsWith('/auth/'))
+		return new Response('Not found', { status: 404 });
 	return resolve(event);
 };
 

@@ -2,7 +2,15 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, readdirSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 
-const INPUTS = ['src', 'static', 'procedures', 'svelte.config.js', 'vite.config.ts', 'tailwind.config.ts', 'package-lock.json'];
+const INPUTS = [
+	'src',
+	'static',
+	'procedures',
+	'svelte.config.js',
+	'vite.config.ts',
+	'tailwind.config.ts',
+	'package-lock.json'
+];
 
 function newestMtime(path: string): number {
 	if (!existsSync(path)) return 0;
@@ -16,10 +24,14 @@ function newestMtime(path: string): number {
 /** Runs `vite build` when build/ is missing or older than any source; returns whether it built. */
 export function buildIfNeeded(root: string, log: (m: string) => void): boolean {
 	const built = join(root, 'build', 'handler.js');
-	const stale = !existsSync(built) || Math.max(...INPUTS.map((p) => newestMtime(join(root, p)))) > statSync(built).mtimeMs;
+	const stale =
+		!existsSync(built) || Math.max(...INPUTS.map((p) => newestMtime(join(root, p)))) > statSync(built).mtimeMs;
 	if (!stale) return false;
 	log('building the app (vite build)…');
-	const res = spawnSync(process.execPath, [join(root, 'node_modules', 'vite', 'bin', 'vite.js'), 'build'], { cwd: root, stdio: 'inherit' });
+	const res = spawnSync(process.execPath, [join(root, 'node_modules', 'vite', 'bin', 'vite.js'), 'build'], {
+		cwd: root,
+		stdio: 'inherit'
+	});
 	if (res.status !== 0) throw new Error('vite build failed');
 	return true;
 }

@@ -5,7 +5,11 @@ import { ormOptions } from '../../mikro-orm.config';
  * Applies pending migrations as the owner role. Hand-written migrations grant to the app's role, whose name they
  * read from BENCHSTAMP_APP_ROLE, so it is set from the app's URL first.
  */
-export async function migrate(ownerUrl: string, appUrl: string, log: (m: string) => void = () => {}): Promise<string[]> {
+export async function migrate(
+	ownerUrl: string,
+	appUrl: string,
+	log: (m: string) => void = () => {}
+): Promise<string[]> {
 	process.env.BENCHSTAMP_APP_ROLE = decodeURIComponent(new URL(appUrl).username);
 	const orm = await MikroORM.init(ormOptions(ownerUrl));
 	try {

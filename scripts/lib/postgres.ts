@@ -429,7 +429,8 @@ function assertDatabaseName(database: string): void {
 function assertSafePath(path: string): void {
 	if (!path.startsWith('/')) throw new Error(`cluster directory must be absolute: ${path}`);
 	// pg_ctl passes -o and -l through /bin/sh; keep quoting trivial.
-	if (/['"`$\\\n\r]/.test(path)) throw new Error(`cluster directory must not contain quotes, $, \\ or newlines: ${path}`);
+	if (/['"`$\\\n\r]/.test(path))
+		throw new Error(`cluster directory must not contain quotes, $, \\ or newlines: ${path}`);
 }
 
 function assertPort(port: number): void {
@@ -446,7 +447,17 @@ async function prepareDirectories(paths: ClusterPaths): Promise<void> {
 		const { uid, gid } = await postgresOsUser();
 		for (const path of [paths.dataDir, paths.runDir, paths.logFile]) await chown(path, uid, gid);
 		// Fails when a parent directory (e.g. a 700 mkdtemp directory or /root) is not traversable by postgres.
-		const check = await run(await runuser(), ['-u', PG_OS_USER, '--', 'test', '-w', paths.runDir, '-a', '-w', paths.logFile]);
+		const check = await run(await runuser(), [
+			'-u',
+			PG_OS_USER,
+			'--',
+			'test',
+			'-w',
+			paths.runDir,
+			'-a',
+			'-w',
+			paths.logFile
+		]);
 		if (check.code !== 0) {
 			throw new Error(
 				`the "${PG_OS_USER}" OS user cannot reach ${paths.baseDir}: every parent directory needs o+x ` +
@@ -522,7 +533,13 @@ function quoteLiteral(value: string): string {
 
 /** Roles, database and grants; every statement is safe to repeat. */
 async function provision(secrets: Secrets, port: number, database: string, log: Log): Promise<void> {
-	const superuser = (db: string) => ({ host: HOST, port, user: SUPERUSER, password: secrets.superuserPassword, database: db });
+	const superuser = (db: string) => ({
+		host: HOST,
+		port,
+		user: SUPERUSER,
+		password: secrets.superuserPassword,
+		database: db
+	});
 	const { Client } = loadPg();
 	const open = async (db: string): Promise<PgClient> => {
 		const client = new Client({ ...superuser(db), connectionTimeoutMillis: 10_000 });

@@ -20,5 +20,7 @@ export const NAV: readonly NavItem[] = [
 ];
 
 export function navFor(roles: readonly string[], demo: boolean): { href: string; label: string; icon?: string }[] {
-	return NAV.filter((n) => (!n.demoOnly || demo) && n.roles.some((r) => roles.includes(r))).map(({ href, label, icon }) => ({ href, label, icon }));
+	return NAV.filter((n) => (!n.demoOnly || demo) && n.roles.some((r) => roles.includes(r))).map(
+		({ href, label, icon }) => ({ href, label, icon })
+	);
 }

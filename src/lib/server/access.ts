@@ -14,13 +14,17 @@ export const AREA_ROLES: { prefix: string; roles: RoleName[] }[] = [
 	{ prefix: '/bench', roles: ['technician', 'lead'] }
 ];
 
-export const isPublicPath = (path: string) => PUBLIC_PREFIXES.some((p) => path === p || path.startsWith(p.endsWith('/') ? p : `${p}/`));
+export const isPublicPath = (path: string) =>
+	PUBLIC_PREFIXES.some((p) => path === p || path.startsWith(p.endsWith('/') ? p : `${p}/`));
 
 export function areaRoles(path: string): RoleName[] | undefined {
-	return AREA_ROLES.find((a) => path === a.prefix || path.startsWith(a.prefix.endsWith('/') ? a.prefix : `${a.prefix}/`))?.roles;
+	return AREA_ROLES.find(
+		(a) => path === a.prefix || path.startsWith(a.prefix.endsWith('/') ? a.prefix : `${a.prefix}/`)
+	)?.roles;
 }
 
-export const hasAnyRole = (user: SessionUser | null, roles: readonly RoleName[]) => !!user && roles.some((r) => user.roles.includes(r));
+export const hasAnyRole = (user: SessionUser | null, roles: readonly RoleName[]) =>
+	!!user && roles.some((r) => user.roles.includes(r));
 
 /** The signed-in person, or a redirect to sign-in (pages) / 401 (APIs). */
 export function requireUser(event: Pick<RequestEvent, 'locals' | 'url'>): SessionUser {

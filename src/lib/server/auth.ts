@@ -9,8 +9,11 @@ import { readTicket } from './tokens';
  * Auth.js issues and reads the session cookie (a JWT). Passwords are checked, and sign-ins rate-limited, by our
  * own sign-in action, which hands Auth.js a one-minute ticket; Auth.js's HTTP endpoints are closed in hooks.
  */
-export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(
-	async (): Promise<SvelteKitAuthConfig> => ({
+export const {
+	handle: authHandle,
+	signIn,
+	signOut
+} = SvelteKitAuth(async (): Promise<SvelteKitAuthConfig> => ({
 	secret: env().AUTH_SECRET,
 	trustHost: true,
 	basePath: '/auth',
@@ -20,7 +23,8 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(
 		Credentials({
 			credentials: { ticket: {} },
 			async authorize(credentials) {
-				const userId = typeof credentials.ticket === 'string' ? readTicket(env().AUTH_SECRET, credentials.ticket) : undefined;
+				const userId =
+					typeof credentials.ticket === 'string' ? readTicket(env().AUTH_SECRET, credentials.ticket) : undefined;
 				if (!userId) return null;
 				const user = await users.findById(getRuntime().orm.em.fork(), userId);
 				if (!user || !user.active) return null;
@@ -40,5 +44,4 @@ export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(
 			return { ...session, uid: token.uid, sv: token.sv };
 		}
 	}
-})
-);
+}));

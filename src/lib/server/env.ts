@@ -9,7 +9,10 @@ const schema = z.object({
 	DATABASE_URL: z.string().regex(/^postgres(ql)?:\/\//, 'must be a postgres:// URL'),
 	AUTH_SECRET: z.string().min(32, 'must be at least 32 characters (generate one with `openssl rand -base64 33`)'),
 	ORIGIN: z.string().url().optional(),
-	SMTP_URL: z.string().regex(/^smtps?:\/\//, 'must be an smtp:// or smtps:// URL').optional(),
+	SMTP_URL: z
+		.string()
+		.regex(/^smtps?:\/\//, 'must be an smtp:// or smtps:// URL')
+		.optional(),
 	MAIL_FROM: z.string().default('Benchstamp <benchstamp@localhost>'),
 	MAIL_DIR: z.string().optional(),
 	FAKE_SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(2526)
@@ -28,7 +31,9 @@ export function env(): Env {
 		throw new Error(`Benchstamp cannot start; fix these settings:\n${lines.join('\n')}`);
 	}
 	if (parsed.data.BENCHSTAMP_MODE === 'production' && !parsed.data.SMTP_URL) {
-		throw new Error('Benchstamp cannot start; fix these settings:\n  SMTP_URL: required in production (your mail relay)');
+		throw new Error(
+			'Benchstamp cannot start; fix these settings:\n  SMTP_URL: required in production (your mail relay)'
+		);
 	}
 	cached = parsed.data;
 	return cached;

@@ -68,6 +68,8 @@ export async function readCapturedMail(dir: string): Promise<CapturedMail[]> {
 	} catch {
 		return [];
 	}
-	const mails = await Promise.all(names.map(async (n) => JSON.parse(await readFile(join(dir, n), 'utf8')) as CapturedMail));
+	const mails = await Promise.all(
+		names.map(async (n) => JSON.parse(await readFile(join(dir, n), 'utf8')) as CapturedMail)
+	);
 	return mails.sort((a, b) => b.receivedAt.localeCompare(a.receivedAt));
 }

@@ -15,8 +15,20 @@ export interface SignInLimits {
 export function createSignInLimits(orm: MikroORM): SignInLimits {
 	const knex = orm.em.getConnection().getKnex();
 	const common = { storeClient: knex, storeType: 'knex', tableName: 'rate_limit', tableCreated: true } as const;
-	const perAccount = new RateLimiterPostgres({ ...common, keyPrefix: 'signin_account', points: 5, duration: 900, blockDuration: 900 });
-	const perAddress = new RateLimiterPostgres({ ...common, keyPrefix: 'signin_address', points: 30, duration: 900, blockDuration: 900 });
+	const perAccount = new RateLimiterPostgres({
+		...common,
+		keyPrefix: 'signin_account',
+		points: 5,
+		duration: 900,
+		blockDuration: 900
+	});
+	const perAddress = new RateLimiterPostgres({
+		...common,
+		keyPrefix: 'signin_address',
+		points: 30,
+		duration: 900,
+		blockDuration: 900
+	});
 	const accountKey = (email: string) => email.trim().toLowerCase();
 
 	const exhausted = (res: RateLimiterRes | null, max: number) => res !== null && res.consumedPoints >= max;

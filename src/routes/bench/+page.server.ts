@@ -1,6 +1,6 @@
 import { requireRole } from '$lib/server/access';
 
 export const load = (event) => {
-	requireRole(event, 'technician','lead');
+	requireRole(event, 'technician', 'lead');
 	return {};
 };

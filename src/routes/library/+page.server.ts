@@ -1,6 +1,6 @@
 import { requireRole } from '$lib/server/access';
 
 export const load = (event) => {
-	requireRole(event, 'lead','quality','admin');
+	requireRole(event, 'lead', 'quality', 'admin');
 	return {};
 };

@@ -14,7 +14,9 @@ const REFUSED = 'That e-mail and password did not sign you in. Check both, or as
 
 export const load = async ({ locals, url }) => {
 	if (locals.user) redirect(303, safeRedirect(url.searchParams.get('redirectTo')) ?? homeFor(locals.user.roles));
-	const form = await superValidate({ redirectTo: url.searchParams.get('redirectTo') ?? '/' }, zod4(signInSchema), { errors: false });
+	const form = await superValidate({ redirectTo: url.searchParams.get('redirectTo') ?? '/' }, zod4(signInSchema), {
+		errors: false
+	});
 	return { form, demo: isDemo() };
 };
 

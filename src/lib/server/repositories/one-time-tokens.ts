@@ -1,7 +1,13 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { OneTimeToken, type IOneTimeToken, type IUser, type TokenPurpose } from '../db/entities';
 
-export function create(em: EntityManager, user: IUser, purpose: TokenPurpose, tokenHash: string, ttlMs: number): IOneTimeToken {
+export function create(
+	em: EntityManager,
+	user: IUser,
+	purpose: TokenPurpose,
+	tokenHash: string,
+	ttlMs: number
+): IOneTimeToken {
 	return em.create(OneTimeToken, {
 		id: crypto.randomUUID(),
 		user,
@@ -20,7 +26,11 @@ export function findByHash(em: EntityManager, tokenHash: string): Promise<IOneTi
  * Returns whether this call consumed it.
  */
 export async function consume(em: EntityManager, id: string): Promise<boolean> {
-	const n = await em.nativeUpdate(OneTimeToken, { id, usedAt: null, expiresAt: { $gt: new Date() } }, { usedAt: new Date() });
+	const n = await em.nativeUpdate(
+		OneTimeToken,
+		{ id, usedAt: null, expiresAt: { $gt: new Date() } },
+		{ usedAt: new Date() }
+	);
 	return n === 1;
 }
 

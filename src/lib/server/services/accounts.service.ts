@@ -45,11 +45,17 @@ export async function invite(
 	input: { email: string; name: string; roles: RoleName[] },
 	baseUrl: string
 ): Promise<Result<IUser>> {
-	if (await users.findByEmail(em, input.email)) return refuse('Someone with this e-mail address already has an account.', 'email');
+	if (await users.findByEmail(em, input.email))
+		return refuse('Someone with this e-mail address already has an account.', 'email');
 	const user = users.create(em, input);
 	const link = newLinkToken();
 	tokens.create(em, user, 'invite', link.hash, INVITE_TTL_MS);
-	adminLog.append(em, actor, { action: 'user.invited', subjectType: 'user', subjectId: user.id, detail: { email: user.email, roles: input.roles } });
+	adminLog.append(em, actor, {
+		action: 'user.invited',
+		subjectType: 'user',
+		subjectId: user.id,
+		detail: { email: user.email, roles: input.roles }
+	});
 	await em.flush();
 	await sendMail({
 		to: user.email,
@@ -82,18 +88,32 @@ async function consumeToken(em: EntityManager, token: string, purpose: TokenPurp
 	return row.user as unknown as IUser;
 }
 
-export async function acceptInvite(em: EntityManager, token: string, input: { password: string; pin: string }): Promise<Result<IUser>> {
+export async function acceptInvite(
+	em: EntityManager,
+	token: string,
+	input: { password: string; pin: string }
+): Promise<Result<IUser>> {
 	const user = await consumeToken(em, token, 'invite');
 	if (!user) return refuse(LINK_GONE);
 	user.passwordHash = await hashSecret(input.password);
 	user.pinHash = await hashSecret(input.pin);
 	user.pinChangedAt = new Date();
-	adminLog.append(em, { id: user.id, name: user.name }, { action: 'user.invite_accepted', subjectType: 'user', subjectId: user.id });
+	adminLog.append(
+		em,
+		{ id: user.id, name: user.name },
+		{ action: 'user.invite_accepted', subjectType: 'user', subjectId: user.id }
+	);
 	await em.flush();
 	return ok(user);
 }
 
-export async function startReset(em: EntityManager, actor: Actor, userId: string, kind: 'password' | 'pin', baseUrl: string): Promise<Result> {
+export async function startReset(
+	em: EntityManager,
+	actor: Actor,
+	userId: string,
+	kind: 'password' | 'pin',
+	baseUrl: string
+): Promise<Result> {
 	const user = await users.findById(em, userId);
 	if (!user) return refuse('No such person.');
 	const purpose: TokenPurpose = kind === 'password' ? 'password_reset' : 'pin_reset';
@@ -118,7 +138,11 @@ export async function startReset(em: EntityManager, actor: Actor, userId: string
 	return ok(undefined);
 }
 
-export async function completeReset(em: EntityManager, token: string, secret: { password?: string; pin?: string }): Promise<Result<IUser>> {
+export async function completeReset(
+	em: EntityManager,
+	token: string,
+	secret: { password?: string; pin?: string }
+): Promise<Result<IUser>> {
 	const purpose: TokenPurpose = secret.password !== undefined ? 'password_reset' : 'pin_reset';
 	const user = await consumeToken(em, token, purpose);
 	if (!user) return refuse(LINK_GONE);
@@ -129,7 +153,11 @@ export async function completeReset(em: EntityManager, token: string, secret: { 
 		user.pinHash = await hashSecret(secret.pin);
 		user.pinChangedAt = new Date();
 	}
-	adminLog.append(em, { id: user.id, name: user.name }, { action: `user.${purpose}_completed`, subjectType: 'user', subjectId: user.id });
+	adminLog.append(
+		em,
+		{ id: user.id, name: user.name },
+		{ action: `user.${purpose}_completed`, subjectType: 'user', subjectId: user.id }
+	);
 	await em.flush();
 	return ok(user);
 }
@@ -139,7 +167,12 @@ async function countOtherActiveAdmins(em: EntityManager, exceptId: string): Prom
 	return all.filter((u) => u.id !== exceptId && u.active && u.roles.includes('admin')).length;
 }
 
-export async function setRoles(em: EntityManager, actor: Actor, userId: string, roles: RoleName[]): Promise<Result<IUser>> {
+export async function setRoles(
+	em: EntityManager,
+	actor: Actor,
+	userId: string,
+	roles: RoleName[]
+): Promise<Result<IUser>> {
 	const user = await users.findById(em, userId);
 	if (!user) return refuse('No such person.');
 	if (user.roles.includes('admin') && !roles.includes('admin') && (await countOtherActiveAdmins(em, user.id)) === 0) {
@@ -148,12 +181,22 @@ export async function setRoles(em: EntityManager, actor: Actor, userId: string, 
 	const before = [...user.roles];
 	user.roles = [...new Set(roles)];
 	user.sessionVersion += 1;
-	adminLog.append(em, actor, { action: 'user.roles_changed', subjectType: 'user', subjectId: user.id, detail: { before, after: user.roles } });
+	adminLog.append(em, actor, {
+		action: 'user.roles_changed',
+		subjectType: 'user',
+		subjectId: user.id,
+		detail: { before, after: user.roles }
+	});
 	await em.flush();
 	return ok(user);
 }
 
-export async function setActive(em: EntityManager, actor: Actor, userId: string, active: boolean): Promise<Result<IUser>> {
+export async function setActive(
+	em: EntityManager,
+	actor: Actor,
+	userId: string,
+	active: boolean
+): Promise<Result<IUser>> {
 	const user = await users.findById(em, userId);
 	if (!user) return refuse('No such person.');
 	if (!active && user.id === actor.id) return refuse('You cannot deactivate your own account.');
@@ -163,7 +206,11 @@ export async function setActive(em: EntityManager, actor: Actor, userId: string,
 	if (user.active === active) return ok(user);
 	user.active = active;
 	user.sessionVersion += 1;
-	adminLog.append(em, actor, { action: active ? 'user.reactivated' : 'user.deactivated', subjectType: 'user', subjectId: user.id });
+	adminLog.append(em, actor, {
+		action: active ? 'user.reactivated' : 'user.deactivated',
+		subjectType: 'user',
+		subjectId: user.id
+	});
 	await em.flush();
 	return ok(user);
 }
@@ -175,12 +222,22 @@ export async function verifyPin(em: EntityManager, userId: string, pin: string):
 	return verifySecret(user.pinHash, pin);
 }
 
-export async function changeOwnPin(em: EntityManager, userId: string, currentPassword: string, newPin: string): Promise<Result> {
+export async function changeOwnPin(
+	em: EntityManager,
+	userId: string,
+	currentPassword: string,
+	newPin: string
+): Promise<Result> {
 	const user = await users.findById(em, userId);
-	if (!user || !(await verifySecret(user.passwordHash, currentPassword))) return refuse('That is not your current password.', 'currentPassword');
+	if (!user || !(await verifySecret(user.passwordHash, currentPassword)))
+		return refuse('That is not your current password.', 'currentPassword');
 	user.pinHash = await hashSecret(newPin);
 	user.pinChangedAt = new Date();
-	adminLog.append(em, { id: user.id, name: user.name }, { action: 'user.pin_changed', subjectType: 'user', subjectId: user.id });
+	adminLog.append(
+		em,
+		{ id: user.id, name: user.name },
+		{ action: 'user.pin_changed', subjectType: 'user', subjectId: user.id }
+	);
 	await em.flush();
 	return ok(undefined);
 }

@@ -18,7 +18,8 @@ export const User = defineEntity({
 		sessionVersion: p.integer().default(1),
 		pinChangedAt: p.datetime().nullable(),
 		createdAt: p.datetime().onCreate(() => new Date()),
-		updatedAt: p.datetime()
+		updatedAt: p
+			.datetime()
 			.onCreate(() => new Date())
 			.onUpdate(() => new Date())
 	}

@@ -11,7 +11,14 @@ export const load = async (event) => {
 	const person = await users.findById(event.locals.em, event.params.id);
 	if (!person) error(404, 'No such person.');
 	return {
-		person: { id: person.id, name: person.name, email: person.email, roles: person.roles, active: person.active, invited: !person.passwordHash },
+		person: {
+			id: person.id,
+			name: person.name,
+			email: person.email,
+			roles: person.roles,
+			active: person.active,
+			invited: !person.passwordHash
+		},
 		form: await superValidate({ roles: person.roles }, zod4(rolesSchema))
 	};
 };

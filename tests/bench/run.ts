@@ -1,0 +1,32 @@
+/**
+ * Benchmark runner: `npm run bench`. Imports each bench module and runs its cases in this one
+ * process, printing the median of several timed runs. Not a test: it reports, it does not fail.
+ * To add a bench, write `tests/bench/<name>.bench.ts` exporting `title` and `main(medianMs)`,
+ * and list it in `modules` below.
+ */
+import * as procedure from './procedure.bench';
+
+export interface BenchModule {
+	title: string;
+	main(measure: typeof medianMs): Promise<void> | void;
+}
+
+/** Median wall time in ms of `runs` calls of `fn`, after `warmup` untimed calls. */
+export async function medianMs(fn: () => unknown, runs = 7, warmup = 2): Promise<number> {
+	for (let i = 0; i < warmup; i++) await fn();
+	const times: number[] = [];
+	for (let i = 0; i < runs; i++) {
+		const t0 = performance.now();
+		await fn();
+		times.push(performance.now() - t0);
+	}
+	times.sort((a, b) => a - b);
+	return times[Math.floor(times.length / 2)];
+}
+
+const modules: BenchModule[] = [procedure];
+
+for (const m of modules) {
+	console.log(`\n== ${m.title}`);
+	await m.main(medianMs);
+}
