@@ -3,10 +3,12 @@ import { defineConfig } from '@playwright/test';
 // Ports, databases and the mail folder come from scripts/test.ts, which starts the throwaway PostgreSQL.
 const appPort = Number(process.env.E2E_APP_PORT ?? 4173);
 const prodPort = Number(process.env.E2E_PROD_PORT ?? 4174);
+const buildDir = process.env.BENCHSTAMP_BUILD_DIR ?? 'build';
 const secret = 'e2e-auth-secret-that-is-long-enough-0123456789';
 
 export default defineConfig({
 	testDir: 'tests/e2e',
+	outputDir: process.env.BENCHSTAMP_PW_OUT ?? 'test-results',
 	fullyParallel: false,
 	workers: 1,
 	retries: 0,
@@ -29,7 +31,7 @@ export default defineConfig({
 	},
 	webServer: [
 		{
-			command: 'node build',
+			command: `node ${buildDir}`,
 			url: `http://localhost:${appPort}/api/health`,
 			reuseExistingServer: false,
 			timeout: 60_000,
@@ -45,7 +47,7 @@ export default defineConfig({
 			}
 		},
 		{
-			command: 'node build',
+			command: `node ${buildDir}`,
 			url: `http://localhost:${prodPort}/api/health`,
 			reuseExistingServer: false,
 			timeout: 60_000,

@@ -5,7 +5,9 @@ import { vitePreprocess } from '@sveltejs/vite-plugin-svelte';
 const config = {
 	preprocess: vitePreprocess(),
 	kit: {
-		adapter: adapter({ out: 'build' }),
+		// Overridable so two checkouts' worth of work (or two engineers) can build side by side without clobbering.
+		adapter: adapter({ out: process.env.BENCHSTAMP_BUILD_DIR ?? 'build' }),
+		outDir: process.env.BENCHSTAMP_KIT_DIR ?? '.svelte-kit',
 		csp: {
 			mode: 'auto',
 			directives: {

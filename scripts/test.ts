@@ -18,6 +18,8 @@ import { freePort, startCluster, stopCluster } from './lib/postgres';
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 const bin = (name: string) => join(root, 'node_modules', '.bin', name);
 const args = process.argv.slice(2);
+// Anything after `--` goes to Playwright, e.g. `tsx scripts/test.ts --only=e2e -- tests/e2e/library.spec.ts`.
+const playwrightArgs = args.includes('--') ? args.slice(args.indexOf('--') + 1) : [];
 const only = args.find((a) => a.startsWith('--only='))?.slice(7);
 const wants = (layer: string) => !only || only.split(',').includes(layer);
 
@@ -72,7 +74,7 @@ async function main() {
 			const prod = await cluster('benchstamp_prod');
 			await migrate(prod.ownerUrl, prod.appUrl);
 			await run('vite build', process.execPath, [join(root, 'node_modules', 'vite', 'bin', 'vite.js'), 'build']);
-			await run('browser tests (Playwright, Chromium)', bin('playwright'), ['test'], {
+			await run('browser tests (Playwright, Chromium)', bin('playwright'), ['test', ...playwrightArgs], {
 				E2E_DATABASE_URL: demo.appUrl,
 				E2E_OWNER_DATABASE_URL: demo.ownerUrl,
 				E2E_PROD_DATABASE_URL: prod.appUrl,

@@ -4,8 +4,10 @@ import { sequence } from '@sveltejs/kit/hooks';
 import type { RoleName } from '$lib/accounts/schema';
 import { areaRoles, hasAnyRole, isPublicPath, requireUser } from '$lib/server/access';
 import { authHandle } from '$lib/server/auth';
+import { isDemo } from '$lib/server/env';
 import * as users from '$lib/server/repositories/users';
 import { getRuntime, startRuntime } from '$lib/server/runtime';
+import { THEME_COOKIE, parseThemeChoice } from '$lib/components/ui/theme';
 
 export const init: ServerInit = async () => {
 	const runtime = await startRuntime();
@@ -38,17 +40,32 @@ const identity: Handle = async ({ event, resolve }) => {
 	return resolve(event);
 };
 
-const areaGuard: Handle = ({ event, resolve }) => {
+/**
+ * Coarse role rules by path. Changes (POST and friends) are refused before any route code runs; a page that is not
+ * for this person is still resolved, so its own `requireRole` can render the friendly 401/403 page, and this
+ * net turns any page that forgot to check into a bare 403.
+ */
+const areaGuard: Handle = async ({ event, resolve }) => {
 	const path = event.url.pathname;
+	if (path.startsWith('/dev/') && !isDemo()) return new Response('Not found', { status: 404 });
 	if (isPublicPath(path)) return resolve(event);
-	const user = requireUser(event);
+	const user = event.locals.user;
 	const roles = areaRoles(path);
-	if (roles && !hasAnyRole(user, roles)) error(403, 'Your role does not allow this page.');
-	return resolve(event);
+	if (user && (!roles || hasAnyRole(user, roles))) return resolve(event);
+	if (event.request.method !== 'GET' && event.request.method !== 'HEAD') {
+		requireUser(event);
+		error(403, 'Your role does not allow this.');
+	}
+	const response = await resolve(event);
+	if (response.status < 300) return new Response('Forbidden', { status: user ? 403 : 401 });
+	return response;
 };
 
 const securityHeaders: Handle = async ({ event, resolve }) => {
-	const response = await resolve(event);
+	// The theme is rendered on <html> by the server: the CSP forbids the inline script that would otherwise set it.
+	const theme = parseThemeChoice(event.cookies.get(THEME_COOKIE));
+	const attr = theme === 'system' ? '' : `data-theme="${theme}"`;
+	const response = await resolve(event, { transformPageChunk: ({ html }) => html.replace('%benchstamp.theme%', attr) });
 	response.headers.set('X-Content-Type-Options', 'nosniff');
 	response.headers.set('Referrer-Policy', 'same-origin');
 	response.headers.set('Permissions-Policy', 'geolocation=(), microphone=()');

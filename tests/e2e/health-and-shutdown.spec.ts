@@ -15,7 +15,7 @@ test('health is 503 with the database down, and SIGTERM closes the pool and exit
 		const db = await startCluster({ baseDir: base, port: await freePort(), database: 'benchstamp', ephemeral: true });
 		await migrateDb(db.ownerUrl, db.appUrl);
 		const port = await freePort();
-		const server = spawn(process.execPath, ['build'], {
+		const server = spawn(process.execPath, [process.env.BENCHSTAMP_BUILD_DIR ?? 'build'], {
 			env: {
 				...process.env,
 				BENCHSTAMP_MODE: 'production',

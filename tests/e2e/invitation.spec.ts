@@ -7,7 +7,7 @@ test('an admin invites someone; the e-mailed link sets password and PIN once', a
 	await expect(page).toHaveURL('/admin/people');
 	await page.getByLabel('Name, as it appears on signed records').fill('Jo Newcomer');
 	await page.getByLabel('E-mail').fill(email);
-	await page.getByLabel('Technician').check();
+	await page.getByLabel('Technician', { exact: true }).check();
 	await page.getByRole('button', { name: 'Send invitation' }).click();
 	await expect(page.getByText(`Invitation sent to ${email}.`)).toBeVisible();
 	await expect(page.getByRole('cell', { name: 'Jo Newcomer' })).toBeVisible();
@@ -43,7 +43,7 @@ test('an admin invites someone; the e-mailed link sets password and PIN once', a
 	await expect(replay.getByRole('heading', { name: 'This link no longer works' })).toBeVisible();
 	const post = await replay.request.post(link, {
 		form: { password: 'x'.repeat(10), passwordAgain: 'x'.repeat(10), pin: '111111', pinAgain: '111111' },
-		headers: { origin: new URL(link).origin }
+		headers: { origin: new URL(link).origin, accept: 'text/html' }
 	});
 	expect(post.status()).toBe(410);
 	await ctx.close();
@@ -54,7 +54,7 @@ test('an invitation to an e-mail that already has an account is refused beside t
 	await signIn(page, DEMO.admin.email);
 	await page.getByLabel('Name, as it appears on signed records').fill('Someone Again');
 	await page.getByLabel('E-mail').fill(DEMO.technician.email);
-	await page.getByLabel('Technician').check();
+	await page.getByLabel('Technician', { exact: true }).check();
 	await page.getByRole('button', { name: 'Send invitation' }).click();
 	await expect(page.getByText('Someone with this e-mail address already has an account.')).toBeVisible();
 	await expect(page.getByLabel('Name, as it appears on signed records')).toHaveValue('Someone Again');

@@ -57,7 +57,9 @@ test.describe('sign-in and roles', () => {
 		const admins = await browser.newContext();
 		const admin = await admins.newPage();
 		await signIn(admin, DEMO.admin.email);
+		await expect(admin).toHaveURL('/admin/people');
 		await admin.goto(`/admin/people/${person.id}`);
+		await expect(admin.getByRole('heading', { name: /E2E Person/ })).toBeVisible();
 		await admin.getByRole('button', { name: 'Deactivate' }).click();
 		await expect(admin.getByText('Deactivated. Their open sessions are closed.')).toBeVisible();
 
