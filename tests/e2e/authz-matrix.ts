@@ -40,7 +40,7 @@ export const MATRIX: MatrixRow[] = [
 	{ route: '/signin', call: 'GET', expect: { ...everyone('allowed'), anonymous: 'ok' } },
 	{ route: '/signin', call: 'POST ?/default', expect: everyone('allowed') },
 	{ route: '/signout', call: 'GET', expect: everyone('allowed') },
-	{ route: '/signout', call: 'POST ?/default', expect: everyone('allowed') },
+	{ route: '/signout', call: 'POST ?/default', expect: { ...everyone('allowed'), anonymous: 'signin' } },
 	{ route: '/welcome/[token]', call: 'GET', expect: everyone('ok') },
 	{ route: '/welcome/[token]', call: 'POST ?/default', expect: everyone('allowed') },
 	{ route: '/reset/[token]', call: 'GET', expect: everyone('ok') },
