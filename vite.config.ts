@@ -11,7 +11,7 @@ export default defineConfig({
 				test: {
 					name: 'unit',
 					environment: 'node',
-					include: ['src/**/*.test.ts']
+					include: ['src/**/*.test.ts', 'tests/cli/**/*.test.ts']
 				}
 			},
 			{

@@ -11,11 +11,11 @@ export interface NavItem {
 /** Every destination in the app bar. The server enforces access; this only decides what each person sees. */
 export const NAV: readonly NavItem[] = [
 	{ href: '/bench', label: 'Bench', icon: 'wrench', roles: ['technician', 'lead'] },
-	{ href: '/library', label: 'Procedures', icon: 'book', roles: ['lead', 'quality', 'admin'] },
-	{ href: '/quality', label: 'Quality', icon: 'shield', roles: ['quality'] },
-	{ href: '/admin/people', label: 'People', icon: 'users', roles: ['admin'] },
-	{ href: '/admin/log', label: 'Admin log', icon: 'list', roles: ['admin'] },
-	{ href: '/dev/outbox', label: 'Outbox', icon: 'mail', roles: ['admin'], demoOnly: true },
+	{ href: '/library', label: 'Procedures', icon: 'procedure', roles: ['lead', 'quality', 'admin'] },
+	{ href: '/quality', label: 'Quality', icon: 'audit', roles: ['quality'] },
+	{ href: '/admin/people', label: 'People', icon: 'user', roles: ['admin'] },
+	{ href: '/admin/log', label: 'Admin log', icon: 'lock', roles: ['admin'] },
+	{ href: '/dev/outbox', label: 'Outbox', icon: 'info', roles: ['admin'], demoOnly: true },
 	{ href: '/account', label: 'My account', icon: 'user', roles: ['technician', 'lead', 'quality', 'admin'] }
 ];
 
