@@ -8,6 +8,8 @@ declare global {
 			em: EntityManager;
 			/** The signed-in person, re-checked against the database on every request; null when anonymous. */
 			user: SessionUser | null;
+			/** The live `user_session` row behind the cookie, revoked at sign-out. */
+			sessionId: string | null;
 		}
 		interface Error {
 			message: string;

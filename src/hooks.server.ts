@@ -5,6 +5,7 @@ import type { RoleName } from '$lib/accounts/schema';
 import { areaRoles, hasAnyRole, isPublicPath, requireUser } from '$lib/server/access';
 import { authHandle } from '$lib/server/auth';
 import { isDemo } from '$lib/server/env';
+import * as sessions from '$lib/server/repositories/sessions';
 import * as users from '$lib/server/repositories/users';
 import { getRuntime, startRuntime } from '$lib/server/runtime';
 import { THEME_COOKIE, parseThemeChoice } from '$lib/components/ui/theme';
@@ -27,13 +28,18 @@ const unitOfWork: Handle = ({ event, resolve }) => {
 	return resolve(event);
 };
 
-/** JWTs cannot be revoked on their own: the person must still be active and the token's session version current. */
+/**
+ * JWTs cannot be revoked on their own: the session row must be live (signing out revokes it), the person active,
+ * and the token's session version current (bumped on deactivation, role change, password reset).
+ */
 const identity: Handle = async ({ event, resolve }) => {
 	event.locals.user = null;
-	const session = (await event.locals.auth()) as { uid?: string; sv?: number } | null;
-	if (session?.uid) {
+	event.locals.sessionId = null;
+	const session = (await event.locals.auth()) as { uid?: string; sv?: number; sid?: string } | null;
+	if (session?.uid && session.sid && (await sessions.isLive(event.locals.em, session.sid, session.uid))) {
 		const user = await users.findById(event.locals.em, session.uid);
 		if (user && user.active && user.sessionVersion === session.sv) {
+			event.locals.sessionId = session.sid;
 			event.locals.user = { id: user.id, name: user.name, email: user.email, roles: user.roles as RoleName[] };
 		}
 	}

@@ -71,12 +71,21 @@ test.describe('sign-in and roles', () => {
 		await admins.close();
 	});
 
-	test('signing out ends the session', async ({ page }) => {
+	test('signing out revokes the session on the server, so a copied cookie stops working', async ({ page, browser }) => {
 		await signIn(page, DEMO.lead.email);
 		await expect(page).toHaveURL('/library');
+		const copied = await browser.newContext();
+		await copied.addCookies(await page.context().cookies());
+		const thief = await copied.newPage();
+		await thief.goto('/library');
+		await expect(thief).toHaveURL('/library');
+
 		await page.getByRole('button', { name: /sign out/i }).click();
 		await expect(page).toHaveURL(/\/signin/);
 		await page.goto('/library');
 		await expect(page).toHaveURL('/signin?redirectTo=%2Flibrary');
+		await thief.goto('/library');
+		await expect(thief).toHaveURL('/signin?redirectTo=%2Flibrary');
+		await copied.close();
 	});
 });

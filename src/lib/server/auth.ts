@@ -23,12 +23,12 @@ export const {
 		Credentials({
 			credentials: { ticket: {} },
 			async authorize(credentials) {
-				const userId =
+				const ticket =
 					typeof credentials.ticket === 'string' ? readTicket(env().AUTH_SECRET, credentials.ticket) : undefined;
-				if (!userId) return null;
-				const user = await users.findById(getRuntime().orm.em.fork(), userId);
+				if (!ticket) return null;
+				const user = await users.findById(getRuntime().orm.em.fork(), ticket.userId);
 				if (!user || !user.active) return null;
-				return { id: user.id, email: user.email, name: user.name, sv: user.sessionVersion };
+				return { id: user.id, email: user.email, name: user.name, sv: user.sessionVersion, sid: ticket.sessionId };
 			}
 		})
 	],
@@ -37,11 +37,12 @@ export const {
 			if (user) {
 				token.uid = user.id;
 				token.sv = (user as { sv?: number }).sv;
+				token.sid = (user as { sid?: string }).sid;
 			}
 			return token;
 		},
 		session({ session, token }) {
-			return { ...session, uid: token.uid, sv: token.sv };
+			return { ...session, uid: token.uid, sv: token.sv, sid: token.sid };
 		}
 	}
 }));

@@ -6,6 +6,7 @@ import { signIn } from '$lib/server/auth';
 import { env, isDemo } from '$lib/server/env';
 import { getRuntime } from '$lib/server/runtime';
 import { safeRedirect } from '$lib/server/safe-redirect';
+import * as sessions from '$lib/server/repositories/sessions';
 import * as accounts from '$lib/server/services/accounts.service';
 import { signTicket } from '$lib/server/tokens';
 
@@ -31,7 +32,13 @@ export const actions = {
 		}
 		const body = new FormData();
 		body.set('providerId', 'credentials');
-		body.set('ticket', signTicket(env().AUTH_SECRET, user.id));
+		const session = sessions.open(event.locals.em, {
+			userId: user.id,
+			userAgent: event.request.headers.get('user-agent'),
+			address: event.getClientAddress()
+		});
+		await event.locals.em.flush();
+		body.set('ticket', signTicket(env().AUTH_SECRET, user.id, session.id));
 		body.set('redirectTo', safeRedirect(form.data.redirectTo) ?? homeFor(user.roles));
 		const headers = new Headers(event.request.headers);
 		headers.delete('content-type');
