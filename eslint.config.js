@@ -5,7 +5,7 @@ import ts from 'typescript-eslint';
 import svelteConfig from './svelte.config.js';
 
 /** The domain is a library: these folders run in the browser, on the server and under plain Node alike. */
-const pureDomain = ['src/lib/procedure/**', 'src/lib/checks/**', 'src/lib/ledger/**'];
+const pureDomain = ['src/lib/procedure/**', 'src/lib/checks/**', 'src/lib/ledger/**', 'src/lib/signing/**'];
 
 export default ts.config(
 	{ ignores: ['build/', '.svelte-kit/', 'node_modules/', '.data/', 'test-results/', 'playwright-report/'] },

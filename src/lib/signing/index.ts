@@ -1,0 +1,2 @@
+/** Pure signing rules shared by the bench (browser) and the server: the PIN attempt policy. */
+export * from './pin-lockout';
