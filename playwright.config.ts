@@ -43,7 +43,12 @@ export default defineConfig({
 				HOST: '127.0.0.1',
 				ORIGIN: `http://localhost:${appPort}`,
 				MAIL_DIR: process.env.E2E_MAIL_DIR ?? '.data/e2e-mail',
-				FAKE_SMTP_PORT: process.env.E2E_SMTP_PORT ?? '2599'
+				FAKE_SMTP_PORT: process.env.E2E_SMTP_PORT ?? '2599',
+				// The app starts its own S3 fake on a free port (kept in memory), storing beside the run's mail folder.
+				FAKE_S3_PORT: '0',
+				FAKE_S3_DIR: process.env.E2E_MAIL_DIR ? `${process.env.E2E_MAIL_DIR}-s3` : '.data/e2e-s3',
+				// adapter-node refuses bodies over 512 KB by default; photos are up to 10 MiB plus the form around them.
+				BODY_SIZE_LIMIT: '11M'
 			}
 		},
 		{
@@ -59,7 +64,13 @@ export default defineConfig({
 				HOST: '127.0.0.1',
 				ORIGIN: `http://localhost:${prodPort}`,
 				// A relay nobody listens on: production must never fall back to the fake server.
-				SMTP_URL: 'smtp://127.0.0.1:9'
+				SMTP_URL: 'smtp://127.0.0.1:9',
+				// Object storage nobody listens on, for the same reason: production never starts the S3 fake.
+				S3_ENDPOINT: 'http://127.0.0.1:9',
+				S3_BUCKET: 'benchstamp-e2e',
+				S3_ACCESS_KEY_ID: 'e2e-unused',
+				S3_SECRET_ACCESS_KEY: 'e2e-unused',
+				BODY_SIZE_LIMIT: '11M'
 			}
 		}
 	]

@@ -15,7 +15,22 @@ const schema = z.object({
 		.optional(),
 	MAIL_FROM: z.string().default('Benchstamp <benchstamp@localhost>'),
 	MAIL_DIR: z.string().optional(),
-	FAKE_SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(2526)
+	FAKE_SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(2526),
+	// Object storage (any S3-API service). Unset S3_BUCKET in demo mode: the app runs its own fake on 127.0.0.1.
+	S3_ENDPOINT: z.string().url('must be a URL such as http://127.0.0.1:9000').optional(),
+	S3_REGION: z.string().min(1).default('us-east-1'),
+	S3_BUCKET: z
+		.string()
+		.regex(
+			/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/,
+			'must be a bucket name (3–63 lower-case letters, digits, dots, hyphens)'
+		)
+		.optional(),
+	S3_ACCESS_KEY_ID: z.string().min(1).optional(),
+	S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
+	S3_PATH_STYLE: z.enum(['true', 'false']).default('true'),
+	FAKE_S3_PORT: z.coerce.number().int().min(0).max(65535).default(0),
+	FAKE_S3_DIR: z.string().optional()
 });
 
 export type Env = z.infer<typeof schema>;
@@ -30,11 +45,16 @@ export function env(): Env {
 		const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`);
 		throw new Error(`Benchstamp cannot start; fix these settings:\n${lines.join('\n')}`);
 	}
-	if (parsed.data.BENCHSTAMP_MODE === 'production' && !parsed.data.SMTP_URL) {
-		throw new Error(
-			'Benchstamp cannot start; fix these settings:\n  SMTP_URL: required in production (your mail relay)'
+	const missing: string[] = [];
+	if (parsed.data.BENCHSTAMP_MODE === 'production' && !parsed.data.SMTP_URL)
+		missing.push('  SMTP_URL: required in production (your mail relay)');
+	if (parsed.data.BENCHSTAMP_MODE === 'production' && !parsed.data.S3_BUCKET)
+		missing.push(
+			'  S3_BUCKET: required in production (the bucket that keeps photos; S3_ENDPOINT for your own service)'
 		);
-	}
+	if (!parsed.data.S3_ACCESS_KEY_ID !== !parsed.data.S3_SECRET_ACCESS_KEY)
+		missing.push('  S3_ACCESS_KEY_ID, S3_SECRET_ACCESS_KEY: give both, or neither for the default credential chain');
+	if (missing.length) throw new Error(`Benchstamp cannot start; fix these settings:\n${missing.join('\n')}`);
 	cached = parsed.data;
 	return cached;
 }

@@ -4,6 +4,7 @@ import { closeOrm, getOrm } from './db/orm';
 import { env } from './env';
 import { useSmtp } from './mail';
 import { createSignInLimits, type SignInLimits } from './sign-in-limits';
+import { closeObjectStore, createObjectStore, useObjectStore } from './storage';
 
 /** Process-wide services, created once by `hooks.server.ts` `init`. Request-scoped state lives on `locals`. */
 export interface Runtime {
@@ -40,12 +41,46 @@ async function boot(): Promise<Runtime> {
 		useSmtp(`smtp://127.0.0.1:${fake.port}`);
 		closeSmtp = fake.close;
 	}
+	let closeS3 = async () => {};
+	if (config.S3_BUCKET) {
+		useObjectStore(
+			createObjectStore({
+				endpoint: config.S3_ENDPOINT,
+				region: config.S3_REGION,
+				bucket: config.S3_BUCKET,
+				accessKeyId: config.S3_ACCESS_KEY_ID,
+				secretAccessKey: config.S3_SECRET_ACCESS_KEY,
+				pathStyle: config.S3_PATH_STYLE === 'true'
+			})
+		);
+	} else {
+		// Demo mode only (env() demands S3_BUCKET in production): objects kept as files by a local fake.
+		const { startFakeS3, FAKE_S3_CREDENTIALS } = await import('./fake-s3');
+		const bucket = 'benchstamp';
+		const fake = await startFakeS3(
+			config.FAKE_S3_PORT,
+			config.FAKE_S3_DIR ?? join(process.cwd(), '.data', 's3'),
+			bucket
+		);
+		useObjectStore(
+			createObjectStore({
+				endpoint: fake.endpoint,
+				region: 'us-east-1',
+				bucket,
+				...FAKE_S3_CREDENTIALS,
+				pathStyle: true
+			})
+		);
+		closeS3 = fake.close;
+	}
 	runtime = {
 		orm,
 		limits: createSignInLimits(orm),
 		mailDir,
 		stop: async () => {
 			await closeSmtp();
+			closeObjectStore();
+			await closeS3();
 			await closeOrm();
 		}
 	};
