@@ -1,0 +1,40 @@
+import { defineEntity, p, type InferEntity } from '@mikro-orm/core';
+import type { JsonValue } from '../../../ledger/jcs';
+import { Run } from './run.entity';
+
+/**
+ * One ledger record: a fact that is never edited. Append-only at the database: the app's role may only INSERT and
+ * SELECT, and `benchstamp_append_only()` refuses UPDATE, DELETE and TRUNCATE (migration `…_ledger_append_only`).
+ *
+ * `hash` = `recordHash({ id, runId, seq, kind, body, prevHash })`. Everything the record asserts — signer, device,
+ * server time, the server's evaluation — is inside `body`, so it is covered by the hash; the other columns repeat
+ * parts of it for queries. `submissionHash` is the sha256 of what the client sent (for idempotent replays).
+ * Unique `(run, seq)` and unique `(run, prev_hash)`: two records can never follow the same one, even past a bug.
+ */
+export const LedgerRecord = defineEntity({
+	name: 'LedgerRecord',
+	tableName: 'ledger_record',
+	uniques: [
+		{ properties: ['run', 'seq'], name: 'ledger_record_run_seq_unique' },
+		{ properties: ['run', 'prevHash'], name: 'ledger_record_run_prev_hash_unique' }
+	],
+	properties: {
+		id: p.uuid().primary(),
+		run: () => p.manyToOne(Run),
+		seq: p.integer(),
+		kind: p.string().length(32),
+		body: p.json<JsonValue>(),
+		prevHash: p.string().length(64).nullable(),
+		hash: p.string().length(64).unique(),
+		submissionHash: p.string().length(64),
+		/** Null for records the server makes itself (a finding opened because the tablet's verdict was wrong). */
+		signerId: p.uuid().nullable().index(),
+		signerRole: p.string().length(16),
+		deviceId: p.string().length(64).nullable(),
+		deviceTime: p.datetime().nullable(),
+		serverTime: p.datetime(),
+		engineVersion: p.string().length(64),
+		signedOffline: p.boolean().default(false)
+	}
+});
+export type ILedgerRecord = InferEntity<typeof LedgerRecord>;

@@ -1,0 +1,375 @@
+/**
+ * The one submit route's use case: a batch of ledger records for one run, each validated, checked and appended in
+ * its OWN transaction under the run's row lock, answered per record in input order — so the offline outbox can
+ * replay a batch unchanged and get `duplicate` for what is already stored.
+ *
+ * Request shape (see runs.schema.ts): `{ records: Submission[], pins?: { [signerId]: pin } }`. The PIN is checked
+ * with argon2 (`verifyPin`) under the `$lib/signing` lockout policy per signer per device, and never stored.
+ */
+import { createHash } from 'node:crypto';
+import { DriverException, UniqueConstraintViolationException } from '@mikro-orm/core';
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { evaluate, type Evaluation } from '../../checks/evaluate';
+import { canonicalize, type JsonValue } from '../../ledger/jcs';
+import { appendTo } from '../../ledger/chain';
+import type { RecordDraft, RecordKind } from '../../ledger/record';
+import { uuidv7 } from '../../ledger/uuid-v7';
+import type { Checkpoint, Procedure, Step } from '../../procedure/model';
+import { ENGINE_VERSION } from '../../procedure/version';
+import { TOOL_STATUS_TEXT } from '../../registers/tool-status';
+import { attemptsLeft, isLocked, lockRemainingMs, recordFailure, recordSuccess } from '../../signing/pin-lockout';
+import type { IProcedureVersion, IRun, IUser } from '../db/entities';
+import * as ledger from '../repositories/ledger';
+import * as pinLocks from '../repositories/pin-locks';
+import { isQualified } from '../repositories/qualifications';
+import * as runs from '../repositories/runs';
+import { findSummary } from '../repositories/tools';
+import * as users from '../repositories/users';
+import { verifyPin } from './accounts.service';
+import { maySee, type Result, type Viewer } from './runs.service';
+import {
+	entriesBodySchema,
+	findingBodySchema,
+	SERVER_BODY_KEYS,
+	submissionSchema,
+	type SubmitBatch,
+	type Submission
+} from './runs.schema';
+
+/** The answer for one record, in the order the records were sent. */
+export interface RecordAnswer {
+	id: string;
+	status: 'accepted' | 'duplicate' | 'refused';
+	reason?: string;
+	seq?: number;
+	hash?: string;
+	/** Ids of records the server appended because of this one (a finding when the tablet's verdict was wrong). */
+	findings?: string[];
+}
+
+export interface SubmitOptions {
+	/** The server clock (tests move it for the PIN lock). */
+	now?: () => Date;
+}
+
+/** Kinds a client may submit today; the rest (verification, N/A approval, supersession…) come with their rules. */
+const ACCEPTED_KINDS: readonly RecordKind[] = ['attempt', 'signoff', 'finding'];
+/** Kinds still accepted once a run awaits review. */
+const AFTER_REVIEW_KINDS: readonly RecordKind[] = ['finding'];
+
+const refused = (id: string, reason: string): RecordAnswer => ({ id, status: 'refused', reason });
+const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex');
+/** What is hashed is what PostgreSQL gives back: plain JSON, `undefined` members gone. */
+const plain = <T>(v: T): JsonValue => JSON.parse(JSON.stringify(v)) as JsonValue;
+
+/** The fingerprint of what the client sent: a replay has the same one, an id reused for other content does not. */
+function fingerprint(s: Submission): string {
+	return sha256(
+		canonicalize({
+			id: s.id,
+			runId: s.runId,
+			kind: s.kind,
+			body: s.body,
+			signer: s.signer,
+			deviceId: s.deviceId ?? null,
+			signedAt: s.signedAt ?? null,
+			signedOffline: s.signedOffline ?? false
+		})
+	);
+}
+
+function firstIssue(error: { issues: readonly { path: PropertyKey[]; message: string }[] }): string {
+	const i = error.issues[0];
+	const path = i.path.map(String).join('.');
+	return path ? `${path}: ${i.message}` : i.message;
+}
+
+type PinCheck = { ok: true } | { ok: false; reason: string };
+
+/** One PIN try under the lockout policy, serialised per person per device by the lock-state row. */
+async function checkPin(em: EntityManager, signer: IUser, deviceId: string, pin: string | undefined, now: Date) {
+	if (pin === undefined) return { ok: false, reason: `Enter ${signer.name}'s PIN to sign.` } satisfies PinCheck;
+	return em.fork().transactional(async (tx): Promise<PinCheck> => {
+		const row = await pinLocks.lockRow(tx, signer.id, deviceId);
+		const state = pinLocks.toState(row);
+		const t = now.getTime();
+		const lockedFor = (ms: number) =>
+			`${signer.name}'s signing on this tablet is locked for ${Math.ceil(ms / 60_000)} more minutes after too many wrong PINs; a lead can unlock it.`;
+		if (isLocked(state, t)) return { ok: false, reason: lockedFor(lockRemainingMs(state, t)) };
+		const good = await verifyPin(tx, signer.id, pin);
+		const next = good ? recordSuccess(state) : recordFailure(state, t);
+		pinLocks.apply(row, next);
+		await tx.flush();
+		if (good) return { ok: true };
+		if (isLocked(next, t)) return { ok: false, reason: `Wrong PIN. ${lockedFor(lockRemainingMs(next, t))}` };
+		const left = attemptsLeft(next, t);
+		return {
+			ok: false,
+			reason: `Wrong PIN for ${signer.name}: ${left} ${left === 1 ? 'try' : 'tries'} left before signing locks.`
+		};
+	});
+}
+
+interface Checked {
+	body: Record<string, JsonValue>;
+	/** Server-judged fails where the tablet showed a pass. */
+	overruled: Evaluation[];
+}
+
+function stepOf(model: Procedure, index: number): Step | undefined {
+	return model.steps.find((s) => s.index === index);
+}
+
+/** Re-runs `evaluate()` on every entry, checks qualification and tools; the server's evaluation goes in the body. */
+async function checkEntries(
+	em: EntityManager,
+	s: Submission,
+	signer: IUser,
+	version: IProcedureVersion,
+	now: Date
+): Promise<{ ok: true; value: Checked } | { ok: false; reason: string }> {
+	const parsed = entriesBodySchema.safeParse(s.body);
+	if (!parsed.success) return { ok: false, reason: `body.${firstIssue(parsed.error)}` };
+	const body = parsed.data;
+	const model = version.model;
+	const step = stepOf(model, body.stepIndex);
+	if (!step) return { ok: false, reason: `The procedure has no step ${body.stepIndex + 1}.` };
+	if (s.kind === 'signoff' && body.entries.length < step.checkpoints.filter((c) => !c.when).length) {
+		const given = new Set(body.entries.map((e) => e.checkpointId));
+		const missing = step.checkpoints.find((c) => !c.when && !given.has(c.id));
+		if (missing) return { ok: false, reason: `Step ${step.index + 1} cannot be signed: ${missing.id} has no entry.` };
+	}
+
+	const family = model.meta.family;
+	if (!(await isQualified(em, signer.id, family, now)))
+		return { ok: false, reason: `${signer.name} holds no training record in force for ${family}, so cannot sign it.` };
+	if (step.qualification && !(await isQualified(em, signer.id, step.qualification, now)))
+		return {
+			ok: false,
+			reason: `Step ${step.index + 1} needs the ${step.qualification} qualification, which ${signer.name} does not hold.`
+		};
+
+	const toolSnapshots: JsonValue[] = [];
+	for (const toolId of body.tools) {
+		const tool = await findSummary(em, toolId, now);
+		if (!tool) return { ok: false, reason: `No tool with id ${toolId} is in the register.` };
+		if (!tool.status.usable)
+			return { ok: false, reason: `Tool ${tool.assetTag} cannot be used: ${TOOL_STATUS_TEXT[tool.status.reason]}.` };
+		toolSnapshots.push(
+			plain({
+				id: tool.id,
+				assetTag: tool.assetTag,
+				kind: tool.kind,
+				lastCalibratedOn: tool.lastCalibratedOn,
+				status: tool.status
+			})
+		);
+	}
+
+	const all: Record<string, Checkpoint> = {};
+	for (const st of model.steps) for (const c of st.checkpoints) all[c.id] = c;
+	const entries = Object.fromEntries(body.entries.map((e) => [e.checkpointId, e.entry]));
+	const evaluation: JsonValue[] = [];
+	const overruled: Evaluation[] = [];
+	for (const e of body.entries) {
+		const cp = step.checkpoints.find((c) => c.id === e.checkpointId);
+		if (!cp) return { ok: false, reason: `Step ${step.index + 1} has no checkpoint ${e.checkpointId}.` };
+		const result = evaluate(cp, e.entry, { checkpoints: all, entries });
+		if (s.kind === 'signoff' && result.status === 'incomplete')
+			return {
+				ok: false,
+				reason: `Step ${step.index + 1} cannot be signed: ${cp.id} is incomplete (${result.reasons[0] ?? 'not finished'}).`
+			};
+		if (e.claimed === 'pass' && result.status === 'fail') overruled.push(result);
+		evaluation.push(plain({ ...result, claimed: e.claimed ?? null }));
+	}
+	return { ok: true, value: { body: { evaluation, toolSnapshots }, overruled } };
+}
+
+function overruleSentence(ev: Evaluation): string {
+	const bad = ev.readings.filter((r) => r.status === 'fail');
+	const what = bad.length
+		? bad.map((r) => `${r.label} ${r.display ?? r.value ?? ''}${r.reason ? ` (${r.reason})` : ''}`.trim()).join('; ')
+		: (ev.reasons[0] ?? 'the entry is out of limits');
+	return `The tablet showed a pass for ${ev.checkpointId}; the server judged it a fail: ${what}.`;
+}
+
+type Prepared =
+	| { kind: 'answer'; answer: RecordAnswer }
+	| {
+			kind: 'append';
+			s: Submission;
+			fp: string;
+			signer: IUser;
+			extra: Record<string, JsonValue>;
+			overruled: Evaluation[];
+	  };
+
+async function duplicateOrReused(
+	em: EntityManager,
+	id: string,
+	fp: string,
+	runId: string
+): Promise<RecordAnswer | null> {
+	const existing = await ledger.findById(em, id);
+	if (!existing) return null;
+	if (existing.submissionHash === fp && (existing.run as unknown as IRun).id === runId)
+		return { id, status: 'duplicate', seq: existing.seq, hash: existing.hash };
+	return refused(id, 'Refused: this record id was already used with different content.');
+}
+
+/** Submits a batch to one run. The route has checked the role; here: the run, who may see it, and every record. */
+export async function submitRecords(
+	em: EntityManager,
+	actor: Viewer,
+	runId: string,
+	batch: SubmitBatch,
+	opts: SubmitOptions = {}
+): Promise<Result<{ answers: RecordAnswer[]; serverTime: number }>> {
+	const clock = opts.now ?? (() => new Date());
+	const run = await runs.findById(em, runId);
+	if (!run || !(await maySee(em, actor, run))) return { ok: false, status: 404, message: 'No such run.' };
+	const version = run.procedureVersion as unknown as IProcedureVersion;
+	const pinResults = new Map<string, PinCheck>();
+	const answers: RecordAnswer[] = [];
+	for (const [i, raw] of batch.records.entries()) {
+		const fork = em.fork({ clear: true });
+		const prepared = await prepare(fork, raw, i, run, version, batch.pins, pinResults, clock);
+		answers.push(
+			prepared.kind === 'answer' ? prepared.answer : await append(em.fork({ clear: true }), runId, prepared, clock)
+		);
+	}
+	return { ok: true, value: { answers, serverTime: clock().getTime() } };
+}
+
+async function prepare(
+	em: EntityManager,
+	raw: unknown,
+	index: number,
+	run: IRun,
+	version: IProcedureVersion,
+	pins: Record<string, string>,
+	pinResults: Map<string, PinCheck>,
+	clock: () => Date
+): Promise<Prepared> {
+	const rawId = (raw as { id?: unknown } | null)?.id;
+	const label = typeof rawId === 'string' && rawId.length <= 64 ? rawId : `(record ${index + 1})`;
+	const answer = (a: RecordAnswer): Prepared => ({ kind: 'answer', answer: a });
+	const parsed = submissionSchema.safeParse(raw);
+	if (!parsed.success) return answer(refused(label, firstIssue(parsed.error)));
+	const s = parsed.data;
+	if (s.runId !== run.id) return answer(refused(s.id, `This record is for run ${s.runId}, not for run ${run.id}.`));
+	if (typeof s.body !== 'object' || s.body === null || Array.isArray(s.body))
+		return answer(refused(s.id, 'body: a record body is a JSON object.'));
+	const reserved = SERVER_BODY_KEYS.find((k) => k in (s.body as object));
+	if (reserved) return answer(refused(s.id, `body.${reserved} is written by the server, not sent.`));
+	const fp = fingerprint(s);
+	const known = await duplicateOrReused(em, s.id, fp, run.id);
+	if (known) return answer(known);
+	if (!ACCEPTED_KINDS.includes(s.kind)) return answer(refused(s.id, `Records of kind ${s.kind} are not accepted yet.`));
+
+	const signer = await users.findById(em, s.signer.id);
+	if (!signer || !signer.active) return answer(refused(s.id, 'The signer is not an active account.'));
+	if (!signer.roles.includes(s.signer.role))
+		return answer(refused(s.id, `${signer.name} does not hold the ${s.signer.role} role named in the record.`));
+	const now = clock();
+	const device = s.deviceId ?? '';
+	const key = `${signer.id}\n${device}`;
+	let pin = pinResults.get(key);
+	if (!pin) {
+		pin = await checkPin(em, signer, device, pins[signer.id], now);
+		pinResults.set(key, pin);
+	}
+	if (!pin.ok) return answer(refused(s.id, pin.reason));
+
+	if (s.kind === 'finding') {
+		const f = findingBodySchema.safeParse(s.body);
+		if (!f.success) return answer(refused(s.id, `body.${firstIssue(f.error)}`));
+		return { kind: 'append', s, fp, signer, extra: {}, overruled: [] };
+	}
+	const checked = await checkEntries(em, s, signer, version, now);
+	if (!checked.ok) return answer(refused(s.id, checked.reason));
+	return { kind: 'append', s, fp, signer, extra: checked.value.body, overruled: checked.value.overruled };
+}
+
+/** Appends one checked record (and a server finding if the tablet's pass was overruled) in one transaction. */
+async function append(
+	em: EntityManager,
+	runId: string,
+	p: Extract<Prepared, { kind: 'append' }>,
+	clock: () => Date
+): Promise<RecordAnswer> {
+	const { s } = p;
+	try {
+		return await em.transactional(async (tx) => {
+			const run = await runs.lockForAppend(tx, runId);
+			if (!run) return refused(s.id, 'No such run.');
+			const known = await duplicateOrReused(tx, s.id, p.fp, runId);
+			if (known) return known;
+			if (run.state === 'awaiting_review' && !AFTER_REVIEW_KINDS.includes(s.kind))
+				return refused(s.id, 'The run is awaiting review: no more steps can be recorded on it.');
+			const serverTime = clock();
+			const body = plain({
+				...(s.body as Record<string, JsonValue>),
+				...p.extra,
+				signer: { id: p.signer.id, name: p.signer.name, role: s.signer.role },
+				device: { id: s.deviceId ?? null, time: s.signedAt === undefined ? null : new Date(s.signedAt).toISOString() },
+				serverTime: serverTime.toISOString(),
+				engine: ENGINE_VERSION
+			});
+			const head = run.headHash ? { runId, seq: run.recordCount, hash: run.headHash } : null;
+			const draft: RecordDraft = { id: s.id, runId, kind: s.kind, body };
+			const stored = appendTo(head, draft);
+			ledger.insert(tx, run, stored, {
+				submissionHash: p.fp,
+				signerId: p.signer.id,
+				signerRole: s.signer.role,
+				deviceId: s.deviceId ?? null,
+				deviceTime: s.signedAt === undefined ? null : new Date(s.signedAt),
+				serverTime,
+				engineVersion: ENGINE_VERSION,
+				signedOffline: s.signedOffline ?? false
+			});
+			const findings: string[] = [];
+			let last = stored;
+			for (const ev of p.overruled) {
+				const findingBody = plain({
+					raisedBy: 'server',
+					about: s.id,
+					stepIndex: (s.body as { stepIndex?: number }).stepIndex,
+					checkpointId: ev.checkpointId,
+					text: overruleSentence(ev),
+					serverTime: serverTime.toISOString(),
+					engine: ENGINE_VERSION
+				});
+				const finding = appendTo(
+					{ runId, seq: last.seq, hash: last.hash },
+					{ id: uuidv7(), runId, kind: 'finding', body: findingBody }
+				);
+				ledger.insert(tx, run, finding, {
+					submissionHash: sha256(canonicalize(findingBody)),
+					signerId: null,
+					signerRole: 'server',
+					deviceId: null,
+					deviceTime: null,
+					serverTime,
+					engineVersion: ENGINE_VERSION,
+					signedOffline: false
+				});
+				findings.push(finding.id);
+				last = finding;
+			}
+			await tx.flush();
+			const answer: RecordAnswer = { id: s.id, status: 'accepted', seq: stored.seq, hash: stored.hash };
+			return findings.length ? { ...answer, findings } : answer;
+		});
+	} catch (e) {
+		if (e instanceof UniqueConstraintViolationException) {
+			const known = await duplicateOrReused(em.fork({ clear: true }), s.id, p.fp, runId);
+			if (known) return known;
+		}
+		if (e instanceof DriverException)
+			return refused(s.id, 'The database could not store this record; nothing was stored.');
+		throw e;
+	}
+}
