@@ -8,7 +8,18 @@ import svelteConfig from './svelte.config.js';
 const pureDomain = ['src/lib/procedure/**', 'src/lib/checks/**', 'src/lib/ledger/**', 'src/lib/signing/**'];
 
 export default ts.config(
-	{ ignores: ['build/', '.svelte-kit/', 'node_modules/', '.data/', 'test-results/', 'playwright-report/'] },
+	{
+		ignores: [
+			'build/',
+			'.svelte-kit/',
+			'.*-build/',
+			'.*-kit/',
+			'node_modules/',
+			'.data/',
+			'test-results/',
+			'playwright-report/'
+		]
+	},
 	js.configs.recommended,
 	...ts.configs.recommended,
 	...svelte.configs.recommended,

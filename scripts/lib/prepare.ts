@@ -38,7 +38,9 @@ export async function prepare(root: string, log: (m: string) => void): Promise<P
 			BENCHSTAMP_MODE: mode,
 			DATABASE_URL: appUrl,
 			AUTH_SECRET: process.env.AUTH_SECRET ?? (await fileSecret(join(dataDir, 'auth-secret'))),
-			MAIL_DIR: process.env.MAIL_DIR ?? join(dataDir, 'mail')
+			MAIL_DIR: process.env.MAIL_DIR ?? join(dataDir, 'mail'),
+			// adapter-node refuses bodies over 512 KB by default; a tablet photo is larger (images are capped at 10 MiB).
+			BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT ?? '11M'
 		}
 	};
 }

@@ -11,7 +11,11 @@ export interface NavItem {
 /** Every destination in the app bar. The server enforces access; this only decides what each person sees. */
 export const NAV: readonly NavItem[] = [
 	{ href: '/bench', label: 'Bench', icon: 'wrench', roles: ['technician', 'lead'] },
-	{ href: '/library', label: 'Procedures', icon: 'procedure', roles: ['lead', 'quality', 'admin'] },
+	{ href: '/library', label: 'Procedures', icon: 'procedure', roles: ['technician', 'lead', 'quality', 'admin'] },
+	{ href: '/jobs', label: 'Jobs', icon: 'run', roles: ['technician', 'lead', 'quality', 'admin'] },
+	{ href: '/tools', label: 'Tools', icon: 'wrench', roles: ['technician', 'lead', 'quality', 'admin'] },
+	{ href: '/parts', label: 'Parts', icon: 'plus-minus', roles: ['lead', 'quality', 'admin'] },
+	{ href: '/qualifications', label: 'Training', icon: 'check', roles: ['lead', 'quality', 'admin'] },
 	{ href: '/quality', label: 'Quality', icon: 'audit', roles: ['quality'] },
 	{ href: '/admin/people', label: 'People', icon: 'user', roles: ['admin'] },
 	{ href: '/admin/log', label: 'Admin log', icon: 'lock', roles: ['admin'] },

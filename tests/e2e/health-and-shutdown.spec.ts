@@ -20,6 +20,9 @@ test('health is 503 with the database down, and SIGTERM closes the pool and exit
 				...process.env,
 				BENCHSTAMP_MODE: 'production',
 				SMTP_URL: 'smtp://127.0.0.1:9',
+				// Production demands object storage too; nobody listens here, and this test uploads nothing.
+				S3_BUCKET: 'benchstamp-e2e',
+				S3_ENDPOINT: 'http://127.0.0.1:9',
 				DATABASE_URL: db.appUrl,
 				AUTH_SECRET: 'health-test-secret-that-is-long-enough-123',
 				PORT: String(port),

@@ -9,13 +9,25 @@ export const REFUSED = /did not sign you in/;
 
 /** The demo people and where each lands: invented people of the invented demo shop (src/lib/server/db/seed.ts). */
 export const DEMO = {
-	technician: { email: 'tech@example.com', home: '/bench', nav: ['Bench', 'My account'] },
-	lead: { email: 'lead@example.com', home: '/library', nav: ['Bench', 'Procedures', 'My account'] },
-	quality: { email: 'quality@example.com', home: '/quality', nav: ['Procedures', 'Quality', 'My account'] },
+	technician: {
+		email: 'tech@example.com',
+		home: '/bench',
+		nav: ['Bench', 'Procedures', 'Jobs', 'Tools', 'My account']
+	},
+	lead: {
+		email: 'lead@example.com',
+		home: '/library',
+		nav: ['Bench', 'Procedures', 'Jobs', 'Tools', 'Parts', 'Training', 'My account']
+	},
+	quality: {
+		email: 'quality@example.com',
+		home: '/quality',
+		nav: ['Procedures', 'Jobs', 'Tools', 'Parts', 'Training', 'Quality', 'My account']
+	},
 	admin: {
 		email: 'admin@example.com',
 		home: '/admin/people',
-		nav: ['Procedures', 'People', 'Admin log', 'Outbox', 'My account']
+		nav: ['Procedures', 'Jobs', 'Tools', 'Parts', 'Training', 'People', 'Admin log', 'Outbox', 'My account']
 	}
 } as const;
 

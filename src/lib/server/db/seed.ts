@@ -2,6 +2,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { User, type Role } from './entities';
 import { hashSecret } from '../passwords';
+import { seedDemoProcedures } from '../procedures-seed';
+import { seedRegisters } from '../registers-seed';
 
 /** The invented demo shop's people. Demo/dev only: a production start never runs this. */
 export const DEMO_PASSWORD = 'bench-demo';
@@ -33,5 +35,7 @@ export async function seedDemo(em: EntityManager): Promise<{ created: number }> 
 		created++;
 	}
 	await em.flush();
+	await seedDemoProcedures(em);
+	await seedRegisters(em);
 	return { created };
 }
