@@ -37,6 +37,31 @@ describe('work orders', () => {
 		expect(new Set(numbers).size).toBe(8);
 	});
 
+	it('refuses a batch of intake photos with one non-photo before storing any of them', async () => {
+		const sharp = (await import('sharp')).default;
+		const png = new Uint8Array(
+			await sharp({ create: { width: 8, height: 8, channels: 3, background: '#808080' } })
+				.png()
+				.toBuffer()
+		);
+		const svg = new TextEncoder().encode('<svg xmlns="http://www.w3.org/2000/svg"><script>alert(1)</script></svg>');
+		const count = async () =>
+			Number(
+				(
+					await withClient(testDbUrls().ownerUrl, (c) =>
+						c.query<{ n: string }>('select count(*) as n from stored_image')
+					)
+				).rows[0].n
+			);
+		const before = await count();
+		const res = await jobService.openJob(orm.em.fork(), lead, jobInput(), [
+			{ bytes: png, filename: 'front.png' },
+			{ bytes: svg, filename: 'drawing.svg' }
+		]);
+		expect(res).toMatchObject({ ok: false, field: 'photos', message: expect.stringContaining('drawing.svg') });
+		expect(await count()).toBe(before);
+	});
+
 	it('links a comeback to the earlier job on the same serial, however the serial is typed', async () => {
 		const first = await open({ unitSerial: 'KTX7-COME-0001', receivedOn: addDays(isoDate(), -90) });
 		const again = await open({ unitSerial: 'ktx7 come 0001', receivedOn: isoDate() });

@@ -31,6 +31,28 @@ describe('tool register and calibration history', () => {
 		expect(again).toMatchObject({ ok: false, field: 'assetTag' });
 	});
 
+	it("corrects a tool's details, logging what changed, and refuses another tool's tag", async () => {
+		const first = toolInput();
+		const second = toolInput();
+		const a = await toolService.registerTool(orm.em.fork(), lead, first);
+		expect(await toolService.registerTool(orm.em.fork(), lead, second)).toMatchObject({ ok: true });
+		if (!a.ok) throw new Error('setup failed');
+		const fixed = { ...first, rangeMax: String(Number(first.rangeMax) + 5), description: 'Corrected description' };
+		expect(await toolService.updateTool(orm.em.fork(), lead, a.value.id, fixed)).toEqual({
+			ok: true,
+			value: undefined
+		});
+		const stored = await tools.findById(orm.em.fork(), a.value.id);
+		expect(String(stored?.rangeMax)).toBe(fixed.rangeMax);
+		const log = await orm.em.fork().find(AdminLog, { subjectId: a.value.id, action: 'tool.updated' });
+		expect(log[0]?.detail).toMatchObject({ after: { description: 'Corrected description' } });
+		const clash = await toolService.updateTool(orm.em.fork(), lead, a.value.id, {
+			...fixed,
+			assetTag: second.assetTag
+		});
+		expect(clash).toMatchObject({ ok: false, field: 'assetTag' });
+	});
+
 	it('refuses a calibration dated in the future and a next due date before the calibration date', async () => {
 		const em = orm.em.fork();
 		const reg = await toolService.registerTool(em, lead, toolInput());

@@ -7,6 +7,7 @@ import { parseFaultCodes, type JobInput, type StateChangeInput } from '../../reg
 import * as adminLog from '../repositories/admin-log';
 import * as jobs from '../repositories/jobs';
 import type { Actor, Result } from './accounts.service';
+import { EMPTY, HEIC_REFUSED, NOT_A_PHOTO, SVG_REFUSED, TOO_LARGE, sniffFormat } from '../images';
 import { MAX_IMAGE_BYTES, imageUrl, storeImage } from './images.service';
 
 export const MAX_PHOTOS_PER_UPLOAD = 8;
@@ -90,8 +91,32 @@ function checkUploads(photos: readonly PhotoUpload[]): Result<never> | undefined
 	if (big) return refuse(`${big.filename}: larger than ${MAX_IMAGE_BYTES / 1024 / 1024} MB.`, 'photos');
 }
 
-/** Stores each photo through the image pipeline (checked by content, metadata stripped); stops at the first refusal. */
+/**
+ * Stores each photo through the image pipeline (checked by content, metadata stripped); stops at the first refusal.
+ * The cheap checks (empty, size, what the bytes are) run on every photo first, so one wrong file in a batch does
+ * not leave the photos before it stored but unlinked.
+ */
 async function storePhotos(em: EntityManager, actor: Actor, photos: readonly PhotoUpload[]): Promise<Result<string[]>> {
+	for (const photo of photos) {
+		const format = sniffFormat(photo.bytes);
+		if (
+			photo.bytes.length === 0 ||
+			photo.bytes.length > MAX_IMAGE_BYTES ||
+			!['jpeg', 'png', 'webp', 'avif'].includes(format)
+		) {
+			const why =
+				photo.bytes.length > MAX_IMAGE_BYTES
+					? TOO_LARGE
+					: format === 'svg'
+						? SVG_REFUSED
+						: format === 'heic'
+							? HEIC_REFUSED
+							: photo.bytes.length === 0
+								? EMPTY
+								: NOT_A_PHOTO;
+			return refuse(`${photo.filename}: ${why}`, 'photos');
+		}
+	}
 	const ids: string[] = [];
 	for (const photo of photos) {
 		const stored = await storeImage(em, actor, { bytes: photo.bytes, filename: photo.filename, purpose: 'intake' });

@@ -33,6 +33,50 @@ export async function registerTool(em: EntityManager, actor: Actor, input: ToolI
 }
 
 /**
+ * Corrects a tool's details (a mistyped range or tag). The change and what it replaced go to the admin log;
+ * calibration history is untouched, and a retired tool stays retired.
+ */
+export async function updateTool(em: EntityManager, actor: Actor, toolId: string, input: ToolInput): Promise<Result> {
+	const tool = await tools.findById(em, toolId);
+	if (!tool) return refuse('No such tool.');
+	if (!tool.active) return refuse('This tool is retired; its details can no longer change.');
+	const other = await tools.findByAssetTag(em, input.assetTag);
+	if (other && other.id !== tool.id) return refuse(DUPLICATE_TAG, 'assetTag');
+	const fields = [
+		'assetTag',
+		'kind',
+		'description',
+		'rangeMin',
+		'rangeMax',
+		'unit',
+		'resolution',
+		'accuracyPct'
+	] as const;
+	const before: Record<string, unknown> = {};
+	const after: Record<string, unknown> = {};
+	for (const f of fields) {
+		if (String(tool[f]) === String(input[f])) continue;
+		before[f] = tool[f];
+		after[f] = input[f];
+	}
+	if (!Object.keys(after).length) return ok(undefined);
+	Object.assign(tool, input);
+	adminLog.append(em, actor, {
+		action: 'tool.updated',
+		subjectType: 'tool',
+		subjectId: tool.id,
+		detail: { before, after }
+	});
+	try {
+		await em.flush();
+	} catch (e) {
+		if (e instanceof UniqueConstraintViolationException) return refuse(DUPLICATE_TAG, 'assetTag');
+		throw e;
+	}
+	return ok(undefined);
+}
+
+/**
  * Records a calibration or an in-house check. The server re-checks the dates against its own clock: a record
  * cannot be dated in the future, and a calibration's next due date must follow its date.
  */
