@@ -30,6 +30,11 @@ const signedIn = (
 	admin: roles.admin ?? other
 });
 const adminOnly = (o: Outcome) => signedIn({ admin: o });
+/** A JSON route: anonymous gets 401 instead of a sign-in redirect. */
+const api = (roles: Parameters<typeof signedIn>[0], other?: Outcome) => ({
+	...signedIn(roles, other),
+	anonymous: 'unauth' as Outcome
+});
 
 export const MATRIX: MatrixRow[] = [
 	{
@@ -47,6 +52,21 @@ export const MATRIX: MatrixRow[] = [
 	{ route: '/reset/[token]', call: 'POST ?/password', expect: everyone('allowed') },
 	{ route: '/reset/[token]', call: 'POST ?/pin', expect: everyone('allowed') },
 	{ route: '/api/health', call: 'GET', expect: everyone('ok') },
+	// Empty form: every role may upload for some purpose, so the missing purpose is a 400 before the per-purpose check.
+	{
+		route: '/api/images',
+		call: 'POST',
+		expect: {
+			...signedIn({ technician: 'allowed', lead: 'allowed', quality: 'allowed', admin: 'allowed' }),
+			anonymous: 'unauth'
+		}
+	},
+	// [id] is a person's uuid here, never an image: signed-in people get 404, anonymous ones sign-in.
+	{
+		route: '/images/[id]',
+		call: 'GET',
+		expect: signedIn({ technician: 'notfound', lead: 'notfound', quality: 'notfound', admin: 'notfound' })
+	},
 	{ route: '/account', call: 'GET', expect: signedIn({ technician: 'ok', lead: 'ok', quality: 'ok', admin: 'ok' }) },
 	{
 		route: '/account',
@@ -54,7 +74,54 @@ export const MATRIX: MatrixRow[] = [
 		expect: signedIn({ technician: 'allowed', lead: 'allowed', quality: 'allowed', admin: 'allowed' })
 	},
 	{ route: '/bench', call: 'GET', expect: signedIn({ technician: 'ok', lead: 'ok' }) },
-	{ route: '/library', call: 'GET', expect: signedIn({ lead: 'ok', quality: 'ok', admin: 'ok' }) },
+	{ route: '/library', call: 'GET', expect: signedIn({ technician: 'ok', lead: 'ok', quality: 'ok', admin: 'ok' }) },
+	// Procedure library (issue 4). `[id]` is a person's id here, so no such procedure: allowed roles get 404.
+	{ route: '/library', call: 'POST ?/importDemo', expect: signedIn({ lead: 'allowed', admin: 'allowed' }) },
+	{ route: '/library/[id]', call: 'GET', expect: signedIn({}, 'notfound') },
+	{ route: '/library/[id]', call: 'POST ?/submit', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) },
+	{ route: '/library/[id]', call: 'POST ?/approve', expect: signedIn({ lead: 'notfound', quality: 'notfound' }) },
+	{
+		route: '/library/[id]',
+		call: 'POST ?/retire',
+		expect: signedIn({ lead: 'notfound', quality: 'notfound', admin: 'notfound' })
+	},
+	{ route: '/library/[id]/edit', call: 'GET', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) },
+	{
+		route: '/library/[id]/diff',
+		call: 'GET',
+		expect: signedIn({ lead: 'notfound', quality: 'notfound', admin: 'notfound' })
+	},
+	{ route: '/library/[id]/v/[number]/traveler', call: 'GET', expect: signedIn({}, 'notfound') },
+	{ route: '/api/procedures', call: 'GET', expect: { ...signedIn({}, 'ok'), anonymous: 'unauth' } },
+	{ route: '/api/procedures', call: 'POST', expect: api({ lead: 'allowed', admin: 'allowed' }) },
+	{
+		route: '/api/procedures/validate',
+		call: 'POST',
+		expect: api({ lead: 'allowed', quality: 'allowed', admin: 'allowed' })
+	},
+	{ route: '/api/procedures/import', call: 'POST', expect: api({ lead: 'allowed', admin: 'allowed' }) },
+	{ route: '/api/procedures/[id]', call: 'GET', expect: api({}, 'notfound') },
+	{
+		route: '/api/procedures/[id]/draft',
+		call: 'GET',
+		expect: api({ lead: 'notfound', quality: 'notfound', admin: 'notfound' })
+	},
+	{ route: '/api/procedures/[id]/draft', call: 'POST', expect: api({ lead: 'allowed', admin: 'allowed' }) },
+	{ route: '/api/procedures/[id]/submit', call: 'POST', expect: api({ lead: 'notfound', admin: 'notfound' }) },
+	{ route: '/api/procedures/[id]/approve', call: 'POST', expect: api({ lead: 'allowed', quality: 'allowed' }) },
+	{ route: '/api/procedures/[id]/versions', call: 'GET', expect: api({}, 'notfound') },
+	{ route: '/api/procedures/[id]/versions/[number]', call: 'GET', expect: api({}, 'notfound') },
+	{ route: '/api/procedures/[id]/versions/[number]/source', call: 'GET', expect: api({}, 'notfound') },
+	{
+		route: '/api/procedures/[id]/versions/[number]/retire',
+		call: 'POST',
+		expect: api({ lead: 'notfound', quality: 'notfound', admin: 'notfound' })
+	},
+	{
+		route: '/api/procedures/[id]/diff',
+		call: 'GET',
+		expect: api({ lead: 'allowed', quality: 'allowed', admin: 'allowed' })
+	},
 	{ route: '/quality', call: 'GET', expect: signedIn({ quality: 'ok' }) },
 	{ route: '/admin/people', call: 'GET', expect: adminOnly('ok') },
 	{ route: '/admin/people', call: 'POST ?/invite', expect: adminOnly('allowed') },
@@ -65,8 +132,64 @@ export const MATRIX: MatrixRow[] = [
 	{ route: '/admin/people/[id]', call: 'POST ?/resetPassword', expect: adminOnly('allowed') },
 	{ route: '/admin/people/[id]', call: 'POST ?/resetPin', expect: adminOnly('allowed') },
 	{ route: '/admin/log', call: 'GET', expect: adminOnly('ok') },
-	{ route: '/dev/outbox', call: 'GET', expect: adminOnly('ok') }
+	{ route: '/dev/outbox', call: 'GET', expect: adminOnly('ok') },
+	// Registers (issue 5): everyone reads jobs and tools; lead and admin edit; quality also moves job states.
+	// `[id]` is a person's id here, so no such job/tool/part: readers get 404, also after an action on it (the page
+	// re-renders and its load answers 404); an empty form elsewhere is a 400 (allowed).
+	...registerRows(),
+	// Runs and the ledger (issue 6). Empty body → 400 for the roles allowed; `[id]` is a person's id, so no such run.
+	{ route: '/api/runs', call: 'POST', expect: api({ lead: 'allowed', admin: 'allowed' }) },
+	{ route: '/api/runs/[id]', call: 'GET', expect: api({}, 'notfound') },
+	{
+		route: '/api/runs/[id]/records',
+		call: 'POST',
+		expect: api({ technician: 'allowed', lead: 'allowed', quality: 'allowed' })
+	},
+	// The bench runner page: `[id]` is a person's id, so every reader gets 404.
+	{ route: '/runs/[id]', call: 'GET', expect: signedIn({}, 'notfound') },
+	// Starting a run from the job page: leads and admins; the made-up job id makes the reloaded page 404.
+	{ route: '/jobs/[id]', call: 'POST ?/startRun', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) }
 ];
+
+function registerRows(): MatrixRow[] {
+	const all = (o: Outcome) => ({ technician: o, lead: o, quality: o, admin: o });
+	const editors = (o: Outcome) => ({ lead: o, admin: o });
+	const office = (o: Outcome) => ({ lead: o, quality: o, admin: o });
+	return [
+		{ route: '/jobs', call: 'GET', expect: signedIn(all('ok')) },
+		{ route: '/jobs/new', call: 'GET', expect: signedIn(editors('ok')) },
+		{ route: '/jobs/new', call: 'POST ?/default', expect: signedIn(editors('allowed')) },
+		{ route: '/jobs/[id]', call: 'GET', expect: signedIn(all('notfound')) },
+		{ route: '/jobs/[id]', call: 'POST ?/state', expect: signedIn(office('notfound')) },
+		{ route: '/jobs/[id]', call: 'POST ?/photos', expect: signedIn(editors('notfound')) },
+		{ route: '/jobs/[id]/card', call: 'GET', expect: signedIn(all('notfound')) },
+		{ route: '/tools', call: 'GET', expect: signedIn(all('ok')) },
+		{ route: '/tools', call: 'POST ?/create', expect: signedIn(editors('allowed')) },
+		{ route: '/tools/[id]', call: 'GET', expect: signedIn(all('notfound')) },
+		{ route: '/tools/[id]', call: 'POST ?/calibration', expect: signedIn(editors('notfound')) },
+		{ route: '/tools/[id]', call: 'POST ?/retire', expect: signedIn(editors('notfound')) },
+		{ route: '/tools/[id]', call: 'POST ?/details', expect: signedIn(editors('notfound')) },
+		{ route: '/parts', call: 'GET', expect: signedIn(office('ok')) },
+		{ route: '/parts', call: 'POST ?/create', expect: signedIn(editors('allowed')) },
+		{ route: '/parts/[id]', call: 'GET', expect: signedIn(office('notfound')) },
+		{ route: '/parts/[id]', call: 'POST ?/lot', expect: signedIn(editors('notfound')) },
+		{ route: '/qualifications', call: 'GET', expect: signedIn(office('ok')) },
+		{ route: '/qualifications', call: 'POST ?/record', expect: signedIn(editors('allowed')) },
+		{ route: '/qualifications', call: 'POST ?/revoke', expect: signedIn(editors('allowed')) },
+		{ route: '/api/jobs', call: 'GET', expect: api(all('ok')) },
+		{ route: '/api/jobs', call: 'POST', expect: api(editors('allowed')) },
+		{ route: '/api/jobs/[id]', call: 'GET', expect: api(all('notfound')) },
+		{ route: '/api/jobs/[id]/state', call: 'POST', expect: api(office('allowed')) },
+		{ route: '/api/tools', call: 'GET', expect: api(all('ok')) },
+		{ route: '/api/tools', call: 'POST', expect: api(editors('allowed')) },
+		{ route: '/api/tools/[id]', call: 'GET', expect: api(all('notfound')) },
+		{ route: '/api/tools/[id]/calibrations', call: 'POST', expect: api(editors('allowed')) },
+		// Technicians read parts and lots here: part and fluid checkpoints pick a lot.
+		{ route: '/api/parts', call: 'GET', expect: api(all('ok')) },
+		{ route: '/api/parts', call: 'POST', expect: api(editors('allowed')) },
+		{ route: '/api/people', call: 'GET', expect: api(office('ok')) }
+	];
+}
 
 /** Auth.js's own endpoints are closed to the network: sign-in goes only through the rate-limited action. */
 export const CLOSED_PATHS = [

@@ -10,8 +10,18 @@ export const AREA_ROLES: { prefix: string; roles: RoleName[] }[] = [
 	{ prefix: '/admin', roles: ['admin'] },
 	{ prefix: '/dev/', roles: ['admin'] },
 	{ prefix: '/quality', roles: ['quality'] },
-	{ prefix: '/library', roles: ['lead', 'quality', 'admin'] },
-	{ prefix: '/bench', roles: ['technician', 'lead'] }
+	{ prefix: '/library', roles: ['technician', 'lead', 'quality', 'admin'] },
+	{ prefix: '/bench', roles: ['technician', 'lead'] },
+	// Registers (issue 5): everyone reads jobs and tools; parts and training are for leads, quality and admins.
+	{ prefix: '/jobs', roles: ['technician', 'lead', 'quality', 'admin'] },
+	{ prefix: '/tools', roles: ['technician', 'lead', 'quality', 'admin'] },
+	{ prefix: '/parts', roles: ['lead', 'quality', 'admin'] },
+	{ prefix: '/qualifications', roles: ['lead', 'quality', 'admin'] },
+	{ prefix: '/api/people', roles: ['lead', 'quality', 'admin'] },
+	// Runs (issue 6): each route narrows further (technicians see their own runs; admins do not submit records).
+	{ prefix: '/api/runs', roles: ['technician', 'lead', 'quality', 'admin'] },
+	// The bench runner page (issue 6): same readers as the runs API; the page narrows technicians to their own runs.
+	{ prefix: '/runs', roles: ['technician', 'lead', 'quality', 'admin'] }
 ];
 
 export const isPublicPath = (path: string) =>

@@ -1,0 +1,111 @@
+/**
+ * What the bench runner's pages need around F's run service: the choices for starting a run on a job, the job's
+ * runs, and the runner screen's view (pinned model, usable tools, who may sign). Plain objects only.
+ */
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { RoleName } from '$lib/accounts/schema';
+import type { Procedure } from '../../procedure/model';
+import { renderStep } from '../../procedure/render';
+import type { IProcedure, IProcedureVersion, IUser } from '../db/entities';
+import * as procedures from '../repositories/procedures';
+import * as runs from '../repositories/runs';
+import { findUsable } from '../repositories/tools';
+import * as users from '../repositories/users';
+import { getRun, maySee, type Result, type RunView, type Viewer } from './runs.service';
+
+/** Roles a signer may sign a step as, in order of preference. */
+const SIGNING_ROLES: RoleName[] = ['technician', 'lead'];
+
+export interface VersionChoice {
+	id: string;
+	label: string;
+	contentHash: string;
+}
+export interface RunSummary {
+	id: string;
+	state: string;
+	title: string;
+	versionNumber: number;
+	assignedTo: string;
+	createdAt: string;
+}
+
+async function activeSigners(em: EntityManager) {
+	return (await users.listAll(em))
+		.filter((u) => u.active && u.roles.some((r) => SIGNING_ROLES.includes(r)))
+		.map((u) => ({ id: u.id, name: u.name, role: SIGNING_ROLES.find((r) => u.roles.includes(r))! }))
+		.sort((a, b) => a.name.localeCompare(b.name));
+}
+
+/** Published, not retired versions (newest per procedure first) and the people a run may be assigned to. */
+export async function startChoices(
+	em: EntityManager
+): Promise<{ versions: VersionChoice[]; assignees: { id: string; name: string }[] }> {
+	const all = await procedures.listAll(em);
+	const titles = new Map(all.map((p) => [p.id, p.title]));
+	const versions = (await procedures.listVersionsLight(em))
+		.filter((v) => !v.retiredAt)
+		.map((v) => {
+			const pid = (v.procedure as unknown as IProcedure).id;
+			return { id: v.id, label: `${titles.get(pid) ?? 'Procedure'} · version ${v.number}`, contentHash: v.contentHash };
+		})
+		.sort((a, b) => a.label.localeCompare(b.label));
+	const assignees = (await activeSigners(em)).map(({ id, name }) => ({ id, name }));
+	return { versions, assignees };
+}
+
+/** The job's runs the viewer may see (technicians: their own). */
+export async function runsOfJob(em: EntityManager, viewer: Viewer, jobId: string): Promise<RunSummary[]> {
+	const out: RunSummary[] = [];
+	for (const r of await runs.listForJob(em, jobId)) {
+		if (!(await maySee(em, viewer, r))) continue;
+		const v = r.procedureVersion as unknown as IProcedureVersion;
+		out.push({
+			id: r.id,
+			state: r.state,
+			title: (v.procedure as unknown as IProcedure).title,
+			versionNumber: v.number,
+			assignedTo: (r.assignedTo as unknown as IUser).name,
+			createdAt: r.createdAt.toISOString()
+		});
+	}
+	return out;
+}
+
+export interface RunnerView {
+	run: RunView;
+	title: string;
+	family: string;
+	model: Procedure;
+	/** Sanitised step HTML by step index (the engine's `renderStep`). */
+	stepHtml: string[];
+	tools: { id: string; assetTag: string; kind: string; description: string }[];
+	signers: { id: string; name: string; role: RoleName }[];
+}
+
+/** The runner screen for a run the viewer may see; otherwise "not found". */
+export async function runnerView(em: EntityManager, viewer: Viewer, runId: string): Promise<Result<RunnerView>> {
+	const got = await getRun(em, viewer, runId);
+	if (!got.ok) return got;
+	const version = await runs.findVersion(em, got.value.procedureVersionId);
+	if (!version) return { ok: false, status: 404, message: 'No such run.' };
+	const model = version.model as Procedure;
+	const tools = (await findUsable(em)).map((t) => ({
+		id: t.id,
+		assetTag: t.assetTag,
+		kind: t.kind,
+		description: t.description
+	}));
+	return {
+		ok: true,
+		value: {
+			run: got.value,
+			title: model.meta.title,
+			family: model.meta.family,
+			model,
+			stepHtml: model.steps.map((s) => renderStep(s)),
+			tools,
+			signers: await activeSigners(em)
+		}
+	};
+}
