@@ -251,3 +251,31 @@ test('bad input: an oversized document and a binary import get a clear message a
 		/A line typed just before the tab closed\./
 	);
 });
+
+test('the fluid form refuses an amount whose minimum is above its maximum, then inserts a clean block', async ({
+	browser
+}) => {
+	const lead = await asPerson(browser, DEMO.lead.email);
+	await lead.goto('/library');
+	await lead.getByRole('button', { name: 'Write a procedure' }).click();
+	await expect(lead).toHaveURL(/\/edit$/);
+	const source = lead.getByLabel('Procedure source (Markdown)');
+	await source.fill(front(`Refill ${Date.now().toString(36)}`));
+	await source.press('ControlOrMeta+End');
+	await insertForm(lead, 'Fluid (amount or level)', {
+		'Checkpoint id': 'fill',
+		'Fluid specification': 'KLW DCF-7 (invented dual-clutch fluid)',
+		'Amount: at least': '5.4',
+		'Amount: at most': '5.0'
+	});
+	const form = lead.getByRole('form', { name: 'Insert a fluid checkpoint' });
+	await expect(form.getByText(/the minimum 5.4 L is above the maximum 5 L/)).toBeVisible();
+	await expect(source).not.toHaveValue(/```fluid/);
+	await form.getByLabel('Amount: at least', { exact: true }).fill('5.0');
+	await form.getByLabel('Amount: at most', { exact: true }).fill('5.4');
+	await form.getByRole('button', { name: 'Insert at cursor' }).click();
+	await expect(source).toHaveValue(
+		/```fluid fill\nspec: KLW DCF-7 \(invented dual-clutch fluid\)\namount: 5.0 to 5.4 L\n```/
+	);
+	await expect(lead.getByRole('heading', { name: 'No problems' })).toBeVisible();
+});
