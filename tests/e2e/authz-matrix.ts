@@ -123,6 +123,11 @@ export const MATRIX: MatrixRow[] = [
 		expect: api({ lead: 'allowed', quality: 'allowed', admin: 'allowed' })
 	},
 	{ route: '/quality', call: 'GET', expect: signedIn({ quality: 'ok' }) },
+	// Quality audit (issue 8). `[id]` is a person's id, so no such run: quality gets 404 on the run record, and quality
+	// and admins get 404 from verify; verifying every run answers 200 with the counts.
+	{ route: '/quality/runs/[id]', call: 'GET', expect: signedIn({ quality: 'notfound' }) },
+	{ route: '/api/runs/[id]/verify', call: 'POST', expect: api({ quality: 'notfound', admin: 'notfound' }) },
+	{ route: '/api/ledger/verify', call: 'POST', expect: api({ quality: 'ok', admin: 'ok' }) },
 	{ route: '/admin/people', call: 'GET', expect: adminOnly('ok') },
 	{ route: '/admin/people', call: 'POST ?/invite', expect: adminOnly('allowed') },
 	{ route: '/admin/people/[id]', call: 'GET', expect: adminOnly('ok') },

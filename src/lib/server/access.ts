@@ -10,6 +10,8 @@ export const AREA_ROLES: { prefix: string; roles: RoleName[] }[] = [
 	{ prefix: '/admin', roles: ['admin'] },
 	{ prefix: '/dev/', roles: ['admin'] },
 	{ prefix: '/quality', roles: ['quality'] },
+	// Verifying the whole ledger (issue 8): quality leads and admins.
+	{ prefix: '/api/ledger', roles: ['quality', 'admin'] },
 	{ prefix: '/library', roles: ['technician', 'lead', 'quality', 'admin'] },
 	{ prefix: '/bench', roles: ['technician', 'lead'] },
 	// Registers (issue 5): everyone reads jobs and tools; parts and training are for leads, quality and admins.

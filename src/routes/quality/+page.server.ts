@@ -1,6 +1,10 @@
 import { requireRole } from '$lib/server/access';
+import { openFindings, reviewQueue } from '$lib/server/services/audit.service';
 
-export const load = (event) => {
+/** The quality home: runs to review, runs under way, and the findings that wait for a disposition. */
+export const load = async (event) => {
 	requireRole(event, 'quality');
-	return {};
+	const em = event.locals.em;
+	const [queue, findings] = await Promise.all([reviewQueue(em.fork()), openFindings(em.fork())]);
+	return { queue, findings };
 };

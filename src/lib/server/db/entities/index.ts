@@ -1,6 +1,7 @@
 import { AdminLog } from './admin-log.entity';
 import { Calibration } from './calibration.entity';
 import { Job } from './job.entity';
+import { LedgerAnchor } from './ledger-anchor.entity';
 import { LedgerRecord } from './ledger-record.entity';
 import { PinLock } from './pin-lock.entity';
 import { JobPhoto } from './job-photo.entity';
@@ -45,6 +46,9 @@ export { RUN_STATES } from './run.entity';
 export type { IRun, RunState } from './run.entity';
 export type { ILedgerRecord } from './ledger-record.entity';
 export type { IPinLock } from './pin-lock.entity';
+export { LedgerAnchor };
+export { ANCHOR_PLACES } from './ledger-anchor.entity';
+export type { ILedgerAnchor, AnchorPlace } from './ledger-anchor.entity';
 
 /** Explicit list: MikroORM never scans folders here. */
 export const entities = [
@@ -67,5 +71,6 @@ export const entities = [
 	PartLot,
 	Run,
 	LedgerRecord,
-	PinLock
+	PinLock,
+	LedgerAnchor
 ];

@@ -1,0 +1,13 @@
+import { error } from '@sveltejs/kit';
+import { z } from 'zod';
+import { requireRole } from '$lib/server/access';
+import { runRecord } from '$lib/server/services/audit.service';
+
+/** The run record: every ledger record of the run in chain order, for audit and print. */
+export const load = async (event) => {
+	requireRole(event, 'quality');
+	const id = z.uuid().safeParse(event.params.id);
+	const record = id.success ? await runRecord(event.locals.em, id.data) : null;
+	if (!record) error(404, 'No such run.');
+	return { record };
+};
