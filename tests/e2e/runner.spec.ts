@@ -48,6 +48,7 @@ async function pin(panel: Locator, digits: string) {
 test('a technician measures a bore out of tolerance, measures again, and signs the step with the PIN', async ({
 	browser
 }) => {
+	test.setTimeout(60_000); // some forty taps on a keypad, two sign-ins: near the 30 s default when workers share the CPU
 	const runId = await startRun(browser);
 	const page = await tablet(browser, DEMO.technician.email);
 	await page.goto(`/runs/${runId}`);
@@ -96,6 +97,52 @@ test('a technician measures a bore out of tolerance, measures again, and signs t
 	expect(signoffs[0].body.evaluation[0].status).toBe('pass');
 	const [tech] = await ownerQuery<{ id: string }>(`select id from app_user where email = $1`, [DEMO.technician.email]);
 	expect(signoffs[0].signer_id).toBe(tech.id);
+});
+
+test('a critical step is verified by a second person; the doer’s own verification is refused with the reason', async ({
+	browser
+}) => {
+	test.setTimeout(60_000);
+	// Lena Marsh (lead, demo PIN 222222) holds KTX-7 and valve-body rebuild training, so she may do the bore step;
+	// Priya Castell (quality, demo PIN 333333) did not do it.
+	const runId = await startRun(browser);
+	const page = await tablet(browser, DEMO.lead.email);
+	await page.goto(`/runs/${runId}`);
+	await page.getByRole('button', { name: BORE_STEP }).click();
+	const bore = page.getByRole('region', { name: 'Checkpoint bore-1' });
+	await bore.getByRole('button', { name: 'Zeroed' }).click();
+	for (const r of ['22.010', '22.011', '22.010', '22.012']) await type(bore, r);
+	await page.getByRole('button', { name: 'Sign this step' }).click();
+	const signPanel = page.getByRole('region', { name: 'Sign step 3' });
+	await signPanel.getByRole('button', { name: 'Lena Marsh' }).click();
+	await pin(signPanel, '222222');
+	await expect(page.getByText('Awaiting verification', { exact: true })).toBeVisible();
+
+	await page.getByRole('button', { name: 'Verify this step' }).click();
+	const verifyPanel = page.getByRole('region', { name: 'Verify step 3' });
+	await verifyPanel.getByRole('button', { name: 'Lena Marsh' }).click();
+	await pin(verifyPanel, '222222');
+	await expect(
+		page.getByText(
+			'Step 3 verification by Lena Marsh: Lena Marsh worked on step 3, so cannot verify it: a critical step is verified by a second person.'
+		)
+	).toBeVisible();
+	await verifyPanel.getByRole('button', { name: 'Not Lena Marsh? Pick again' }).click();
+	await verifyPanel.getByRole('button', { name: 'Priya Castell' }).click();
+	await pin(verifyPanel, '333333');
+	await expect(page.getByText(`Step 3 verification by Priya Castell`, { exact: true })).toBeVisible();
+	// Verified, the run goes on to the next step; back on step 3 the badge says so.
+	await expect(page.getByRole('heading', { name: /^Step 4:/ })).toBeVisible();
+	await page.getByRole('button', { name: 'Back', exact: true }).click();
+	await expect(page.getByText('Verified', { exact: true })).toBeVisible();
+	const rows = await ownerQuery<{ kind: string; signer_role: string }>(
+		`select kind, signer_role from ledger_record where run_id = $1 order by seq`,
+		[runId]
+	);
+	expect(rows).toEqual([
+		{ kind: 'signoff', signer_role: 'lead' },
+		{ kind: 'verification', signer_role: 'quality' }
+	]);
 });
 
 test('every button and input on the runner step screen is at least 64 × 64 CSS px', async ({ browser }) => {

@@ -24,7 +24,7 @@ export function deviceId(): string {
 /** Sends one record signed by `signer` with their PIN; answers the server's verdict, or a refusal in words. */
 export async function submitOne(
 	runId: string,
-	kind: 'attempt' | 'signoff' | 'finding',
+	kind: 'attempt' | 'signoff' | 'finding' | 'verification',
 	body: Record<string, unknown>,
 	signer: { id: string; role: string },
 	pin: string

@@ -15,6 +15,8 @@ import { getRun, maySee, type Result, type RunView, type Viewer } from './runs.s
 
 /** Roles a signer may sign a step as, in order of preference. */
 const SIGNING_ROLES: RoleName[] = ['technician', 'lead'];
+/** Roles a second person may verify a critical step as (the submit service's rule), in order of preference. */
+const VERIFYING_ROLES: RoleName[] = ['quality', 'lead'];
 
 export interface VersionChoice {
 	id: string;
@@ -30,10 +32,10 @@ export interface RunSummary {
 	createdAt: string;
 }
 
-async function activeSigners(em: EntityManager) {
+async function activeSigners(em: EntityManager, roles: RoleName[] = SIGNING_ROLES) {
 	return (await users.listAll(em))
-		.filter((u) => u.active && u.roles.some((r) => SIGNING_ROLES.includes(r)))
-		.map((u) => ({ id: u.id, name: u.name, role: SIGNING_ROLES.find((r) => u.roles.includes(r))! }))
+		.filter((u) => u.active && u.roles.some((r) => roles.includes(r)))
+		.map((u) => ({ id: u.id, name: u.name, role: roles.find((r) => u.roles.includes(r))! }))
 		.sort((a, b) => a.name.localeCompare(b.name));
 }
 
@@ -81,6 +83,8 @@ export interface RunnerView {
 	stepHtml: string[];
 	tools: { id: string; assetTag: string; kind: string; description: string }[];
 	signers: { id: string; name: string; role: RoleName }[];
+	/** Who may verify a critical step (lead or quality); the server refuses whoever did the step. */
+	verifiers: { id: string; name: string; role: RoleName }[];
 }
 
 /** The runner screen for a run the viewer may see; otherwise "not found". */
@@ -105,7 +109,8 @@ export async function runnerView(em: EntityManager, viewer: Viewer, runId: strin
 			model,
 			stepHtml: model.steps.map((s) => renderStep(s)),
 			tools,
-			signers: await activeSigners(em)
+			signers: await activeSigners(em),
+			verifiers: await activeSigners(em, VERIFYING_ROLES)
 		}
 	};
 }

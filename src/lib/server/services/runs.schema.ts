@@ -90,3 +90,13 @@ export const findingBodySchema = z.looseObject({
 	checkpointId: z.string().max(48).optional(),
 	text: z.string().trim().min(1, 'Say what was found.').max(4000)
 });
+
+/**
+ * The body of a `verification`: a second person (lead or quality, who did not do the step) confirms a signed
+ * critical step, naming the sign-off they checked.
+ */
+export const verificationBodySchema = z.looseObject({
+	stepIndex: z.int().min(0, 'stepIndex is the 0-based step number.'),
+	signoffId: z.uuid({ error: 'signoffId names the sign-off record being verified.' })
+});
+export type VerificationBody = z.infer<typeof verificationBodySchema>;

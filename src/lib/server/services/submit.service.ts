@@ -18,7 +18,8 @@ import type { Checkpoint, Procedure, Step } from '../../procedure/model';
 import { ENGINE_VERSION } from '../../procedure/version';
 import { TOOL_STATUS_TEXT } from '../../registers/tool-status';
 import { attemptsLeft, isLocked, lockRemainingMs, recordFailure, recordSuccess } from '../../signing/pin-lockout';
-import type { IProcedureVersion, IRun, IUser } from '../db/entities';
+import type { ILedgerRecord, IProcedureVersion, IRun, IUser } from '../db/entities';
+import * as adminLog from '../repositories/admin-log';
 import * as ledger from '../repositories/ledger';
 import * as pinLocks from '../repositories/pin-locks';
 import { isQualified } from '../repositories/qualifications';
@@ -32,6 +33,7 @@ import {
 	findingBodySchema,
 	SERVER_BODY_KEYS,
 	submissionSchema,
+	verificationBodySchema,
 	type SubmitBatch,
 	type Submission
 } from './runs.schema';
@@ -52,8 +54,12 @@ export interface SubmitOptions {
 	now?: () => Date;
 }
 
-/** Kinds a client may submit today; the rest (verification, N/A approval, supersession…) come with their rules. */
-const ACCEPTED_KINDS: readonly RecordKind[] = ['attempt', 'signoff', 'finding'];
+/** Kinds a client may submit today; the rest (N/A approval, supersession…) come with their rules. */
+const ACCEPTED_KINDS: readonly RecordKind[] = ['attempt', 'signoff', 'finding', 'verification'];
+/** Roles that may verify a critical step (and the role the verification record must name). */
+export const VERIFY_ROLES = ['lead', 'quality'] as const;
+/** Kinds that may complete a run (and so are checked for completion after they are appended). */
+const COMPLETING_KINDS: readonly RecordKind[] = ['signoff', 'verification'];
 /** Kinds still accepted once a run awaits review. */
 const AFTER_REVIEW_KINDS: readonly RecordKind[] = ['finding'];
 
@@ -205,6 +211,35 @@ type Prepared =
 			overruled: Evaluation[];
 	  };
 
+const stepIndexOf = (r: ILedgerRecord): number | undefined => (r.body as { stepIndex?: number } | null)?.stepIndex;
+
+/**
+ * The checks of a verification that depend on the run's chain, made under the run's row lock so no record can slip
+ * in between: the named sign-off is this step's, the verifier neither signed nor attempted the step (whatever roles
+ * they hold), and the step is not verified already.
+ */
+function verificationRefusal(records: ILedgerRecord[], s: Submission, signer: IUser): string | null {
+	const { stepIndex, signoffId } = s.body as { stepIndex: number; signoffId: string };
+	const n = stepIndex + 1;
+	const signoff = records.find((r) => r.id === signoffId);
+	if (!signoff || signoff.kind !== 'signoff' || stepIndexOf(signoff) !== stepIndex)
+		return `Step ${n} has no sign-off ${signoffId} in this run to verify.`;
+	const did = records.some(
+		(r) => (r.kind === 'signoff' || r.kind === 'attempt') && stepIndexOf(r) === stepIndex && r.signerId === signer.id
+	);
+	if (did)
+		return `${signer.name} worked on step ${n}, so cannot verify it: a critical step is verified by a second person.`;
+	if (records.some((r) => r.kind === 'verification' && stepIndexOf(r) === stepIndex))
+		return `Step ${n} is already verified.`;
+	return null;
+}
+
+/** Every step has a sign-off, and a verification where it is critical. */
+function isComplete(model: Procedure, records: { kind: string; stepIndex?: number }[]): boolean {
+	const has = (kind: string, index: number) => records.some((r) => r.kind === kind && r.stepIndex === index);
+	return model.steps.every((st) => has('signoff', st.index) && (!st.critical || has('verification', st.index)));
+}
+
 async function duplicateOrReused(
 	em: EntityManager,
 	id: string,
@@ -236,7 +271,9 @@ export async function submitRecords(
 		const fork = em.fork({ clear: true });
 		const prepared = await prepare(fork, raw, i, run, version, batch.pins, pinResults, clock);
 		answers.push(
-			prepared.kind === 'answer' ? prepared.answer : await append(em.fork({ clear: true }), runId, prepared, clock)
+			prepared.kind === 'answer'
+				? prepared.answer
+				: await append(em.fork({ clear: true }), runId, version.model, prepared, clock)
 		);
 	}
 	return { ok: true, value: { answers, serverTime: clock().getTime() } };
@@ -282,6 +319,24 @@ async function prepare(
 	}
 	if (!pin.ok) return answer(refused(s.id, pin.reason));
 
+	if (s.kind === 'verification') {
+		const v = verificationBodySchema.safeParse(s.body);
+		if (!v.success) return answer(refused(s.id, `body.${firstIssue(v.error)}`));
+		const step = stepOf(version.model, v.data.stepIndex);
+		if (!step) return answer(refused(s.id, `The procedure has no step ${v.data.stepIndex + 1}.`));
+		if (!step.critical)
+			return answer(refused(s.id, `Step ${step.index + 1} is not a critical step: it needs no verification.`));
+		if (!(VERIFY_ROLES as readonly string[]).includes(s.signer.role))
+			return answer(
+				refused(
+					s.id,
+					signer.roles.some((r) => (VERIFY_ROLES as readonly string[]).includes(r))
+						? `A verification is signed in the lead or quality role, not as ${s.signer.role}.`
+						: `${signer.name} holds neither the lead nor the quality role, so cannot verify a critical step.`
+				)
+			);
+		return { kind: 'append', s, fp, signer, extra: {}, overruled: [] };
+	}
 	if (s.kind === 'finding') {
 		const f = findingBodySchema.safeParse(s.body);
 		if (!f.success) return answer(refused(s.id, `body.${firstIssue(f.error)}`));
@@ -292,10 +347,15 @@ async function prepare(
 	return { kind: 'append', s, fp, signer, extra: checked.value.body, overruled: checked.value.overruled };
 }
 
-/** Appends one checked record (and a server finding if the tablet's pass was overruled) in one transaction. */
+/**
+ * Appends one checked record (and a server finding if the tablet's pass was overruled) in one transaction; when the
+ * record completes the run (every step signed, critical ones verified) the run moves to `awaiting_review` in that
+ * same transaction. The job's own state is left to the people who move it: the job page shows the run's state.
+ */
 async function append(
 	em: EntityManager,
 	runId: string,
+	model: Procedure,
 	p: Extract<Prepared, { kind: 'append' }>,
 	clock: () => Date
 ): Promise<RecordAnswer> {
@@ -308,6 +368,12 @@ async function append(
 			if (known) return known;
 			if (run.state === 'awaiting_review' && !AFTER_REVIEW_KINDS.includes(s.kind))
 				return refused(s.id, 'The run is awaiting review: no more steps can be recorded on it.');
+			const completing = COMPLETING_KINDS.includes(s.kind);
+			const earlier = completing ? await ledger.listForRun(tx, runId) : [];
+			if (s.kind === 'verification') {
+				const why = verificationRefusal(earlier, s, p.signer);
+				if (why) return refused(s.id, why);
+			}
 			const serverTime = clock();
 			const body = plain({
 				...(s.body as Record<string, JsonValue>),
@@ -358,6 +424,17 @@ async function append(
 				});
 				findings.push(finding.id);
 				last = finding;
+			}
+			const stepIndex = (s.body as { stepIndex?: number }).stepIndex;
+			const done = [...earlier.map((r) => ({ kind: r.kind, stepIndex: stepIndexOf(r) })), { kind: s.kind, stepIndex }];
+			if (completing && run.state !== 'awaiting_review' && isComplete(model, done)) {
+				run.state = 'awaiting_review';
+				adminLog.append(tx, p.signer, {
+					action: 'run.awaiting_review',
+					subjectType: 'run',
+					subjectId: runId,
+					detail: { completedBy: s.id, kind: s.kind, recordCount: run.recordCount }
+				});
 			}
 			await tx.flush();
 			const answer: RecordAnswer = { id: s.id, status: 'accepted', seq: stored.seq, hash: stored.hash };
