@@ -12,7 +12,9 @@ export default defineConfig({
 	fullyParallel: false,
 	workers: 1,
 	retries: 0,
-	timeout: 30_000,
+	// Generous: CI is a 2-core machine running two app servers and Chromium at once; a slow step is not a failure.
+	timeout: 90_000,
+	expect: { timeout: 15_000 },
 	reporter: [['list']],
 	use: {
 		baseURL: `http://localhost:${appPort}`,
