@@ -1,4 +1,5 @@
 import { expect, test, type Browser, type Page } from '@playwright/test';
+import sharp from 'sharp';
 import { DEMO, DEMO_PASSWORD, makePerson, ownerQuery, signIn } from './support';
 
 // Authoring as a new lead technician would do it (issue 4). Specs below are invented for the demo.
@@ -278,4 +279,48 @@ test('the fluid form refuses an amount whose minimum is above its maximum, then 
 		/```fluid fill\nspec: KLW DCF-7 \(invented dual-clutch fluid\)\namount: 5.0 to 5.4 L\n```/
 	);
 	await expect(lead.getByRole('heading', { name: 'No problems' })).toBeVisible();
+});
+
+test('a lead uploads a reference picture into the draft at the cursor; an SVG is refused and changes nothing', async ({
+	browser
+}) => {
+	const lead = await asPerson(browser, DEMO.lead.email);
+	await lead.goto('/library');
+	await lead.getByRole('button', { name: 'Write a procedure' }).click();
+	await expect(lead).toHaveURL(/\/edit$/);
+	const source = lead.getByLabel('Procedure source (Markdown)');
+	const text = front(`Magnet picture ${Date.now().toString(36)}`);
+	await source.fill(text);
+	// The cursor at the end of the step's sentence: the picture goes there, not at the end of the text.
+	const sentence = 'Fit the cover and run the screws down by hand.';
+	const at = text.indexOf(sentence) + sentence.length;
+	await source.evaluate((el: HTMLTextAreaElement, i) => el.setSelectionRange(i, i), at);
+
+	const png = await sharp({ create: { width: 48, height: 32, channels: 3, background: { r: 200, g: 90, b: 40 } } })
+		.png()
+		.toBuffer();
+	await lead.getByLabel('Picture description').fill('Piston 1 magnet facing the sensor pocket');
+	const picture = lead.getByLabel('Reference picture (JPEG, PNG or WebP)');
+	await picture.setInputFiles({ name: 'magnet.png', mimeType: 'image/png', buffer: png });
+	await expect(source).toHaveValue(/!\[Piston 1 magnet facing the sensor pocket\]\(\/images\/[0-9a-f-]{36}\)/);
+	const value = await source.inputValue();
+	const markdown = value.match(/!\[[^\]]*\]\(\/images\/[0-9a-f-]{36}\)/)![0];
+	expect(value).toBe(text.slice(0, at) + markdown + text.slice(at));
+	const src = markdown.slice(markdown.indexOf('(') + 1, -1);
+
+	const img = lead.getByRole('region', { name: 'Preview' }).getByRole('img', { name: 'Piston 1 magnet' });
+	await expect(img).toHaveAttribute('src', src);
+	await expect.poll(() => img.evaluate((el: HTMLImageElement) => el.complete && el.naturalWidth)).toBe(48);
+	const served = await lead.request.get(src);
+	expect(served.status()).toBe(200);
+	expect(served.headers()['content-type']).toBe('image/jpeg');
+
+	await expect(lead.getByTestId('save-state')).toHaveText('Saved', { timeout: 10_000 });
+	const svg =
+		'<?xml version="1.0"?><svg xmlns="http://www.w3.org/2000/svg" width="10" height="10"><script>alert(1)</script></svg>';
+	await lead.getByLabel('Picture description').fill('A drawing');
+	await picture.setInputFiles({ name: 'drawing.png', mimeType: 'image/png', buffer: Buffer.from(svg) });
+	await expect(lead.getByText(/SVG drawings cannot be uploaded: they can carry scripts/)).toBeVisible();
+	await expect(source).toHaveValue(value);
+	await expect(lead.getByTestId('save-state')).toHaveText('Saved');
 });

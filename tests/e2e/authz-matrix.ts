@@ -152,6 +152,9 @@ export const MATRIX: MatrixRow[] = [
 	},
 	// The bench runner page: `[id]` is a person's id, so every reader gets 404.
 	{ route: '/runs/[id]', call: 'GET', expect: signedIn({}, 'notfound') },
+	// A lead's decision about a newer version (issue 4): only leads and admins, who then find no such run.
+	{ route: '/runs/[id]', call: 'POST ?/continueOn', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) },
+	{ route: '/runs/[id]', call: 'POST ?/move', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) },
 	// Starting a run from the job page: leads and admins; the made-up job id makes the reloaded page 404.
 	{ route: '/jobs/[id]', call: 'POST ?/startRun', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) }
 ];

@@ -25,6 +25,16 @@ export function append(em: EntityManager, actor: Actor | null, entry: LogEntry):
 	});
 }
 
+/** The entries of one action about one subject, newest first. */
+export function forSubject(
+	em: EntityManager,
+	action: string,
+	subjectType: string,
+	subjectId: string
+): Promise<IAdminLog[]> {
+	return em.find(AdminLog, { action, subjectType, subjectId }, { orderBy: { id: 'desc' } });
+}
+
 export function latest(em: EntityManager, limit = 200): Promise<IAdminLog[]> {
 	return em.find(AdminLog, {}, { orderBy: { id: 'desc' }, limit });
 }

@@ -11,6 +11,7 @@ import * as procedures from '../repositories/procedures';
 import * as runs from '../repositories/runs';
 import { findUsable } from '../repositories/tools';
 import * as users from '../repositories/users';
+import { versionNotice, type VersionNotice } from './run-versions.service';
 import { getRun, maySee, type Result, type RunView, type Viewer } from './runs.service';
 
 /** Roles a signer may sign a step as, in order of preference. */
@@ -30,6 +31,8 @@ export interface RunSummary {
 	versionNumber: number;
 	assignedTo: string;
 	createdAt: string;
+	/** A short word about a newer version: waiting for a lead's decision, or moved (null otherwise). */
+	versionNote: string | null;
 }
 
 async function activeSigners(em: EntityManager, roles: RoleName[] = SIGNING_ROLES) {
@@ -56,6 +59,15 @@ export async function startChoices(
 	return { versions, assignees };
 }
 
+function noteOf(n: VersionNotice | null): string | null {
+	if (!n) return null;
+	if (n.decision?.decision === 'move') return `moved to version ${n.decision.toVersion}`;
+	if (!n.newer) return null;
+	return n.decision
+		? `continues on version ${n.runVersion} (version ${n.newer.number} published)`
+		: `version ${n.newer.number} published: a lead decides whether this run continues or moves`;
+}
+
 /** The job's runs the viewer may see (technicians: their own). */
 export async function runsOfJob(em: EntityManager, viewer: Viewer, jobId: string): Promise<RunSummary[]> {
 	const out: RunSummary[] = [];
@@ -68,7 +80,8 @@ export async function runsOfJob(em: EntityManager, viewer: Viewer, jobId: string
 			title: (v.procedure as unknown as IProcedure).title,
 			versionNumber: v.number,
 			assignedTo: (r.assignedTo as unknown as IUser).name,
-			createdAt: r.createdAt.toISOString()
+			createdAt: r.createdAt.toISOString(),
+			versionNote: noteOf(await versionNotice(em, viewer, r))
 		});
 	}
 	return out;
@@ -85,6 +98,8 @@ export interface RunnerView {
 	signers: { id: string; name: string; role: RoleName }[];
 	/** Who may verify a critical step (lead or quality); the server refuses whoever did the step. */
 	verifiers: { id: string; name: string; role: RoleName }[];
+	/** A newer published version and the lead's decision about it (null when there is none). */
+	versionNotice: VersionNotice | null;
 }
 
 /** The runner screen for a run the viewer may see; otherwise "not found". */
@@ -94,6 +109,7 @@ export async function runnerView(em: EntityManager, viewer: Viewer, runId: strin
 	const version = await runs.findVersion(em, got.value.procedureVersionId);
 	if (!version) return { ok: false, status: 404, message: 'No such run.' };
 	const model = version.model as Procedure;
+	const row = (await runs.findById(em, runId))!;
 	const tools = (await findUsable(em)).map((t) => ({
 		id: t.id,
 		assetTag: t.assetTag,
@@ -110,7 +126,8 @@ export async function runnerView(em: EntityManager, viewer: Viewer, runId: strin
 			stepHtml: model.steps.map((s) => renderStep(s)),
 			tools,
 			signers: await activeSigners(em),
-			verifiers: await activeSigners(em, VERIFYING_ROLES)
+			verifiers: await activeSigners(em, VERIFYING_ROLES),
+			versionNotice: await versionNotice(em, viewer, row)
 		}
 	};
 }

@@ -1,8 +1,10 @@
-import { error } from '@sveltejs/kit';
+import { error, fail, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
 import { hasAnyRole, requireRole } from '$lib/server/access';
 import { runnerView } from '$lib/server/services/runner.service';
+import { DECIDE_ROLES, decideVersion } from '$lib/server/services/run-versions.service';
 import { READ_ROLES, SUBMIT_ROLES } from '$lib/server/services/runs.service';
+import type { RequestEvent } from './$types';
 
 /** The bench runner: technicians their own runs (assigned or signed in), leads and quality all, admins read. */
 export const load = async (event) => {
@@ -10,5 +12,31 @@ export const load = async (event) => {
 	const id = z.uuid().safeParse(event.params.id);
 	const view = id.success ? await runnerView(event.locals.em, user, id.data) : undefined;
 	if (!view?.ok) error(404, 'No such run.');
-	return { ...view.value, canSign: hasAnyRole(user, SUBMIT_ROLES) };
+	const moved = view.value.versionNotice?.decision?.decision === 'move';
+	return { ...view.value, canSign: hasAnyRole(user, SUBMIT_ROLES) && !moved };
+};
+
+const decisionSchema = z.object({ toVersionId: z.uuid('Reload the run: the version to decide about is missing.') });
+
+/** A lead's decision about a newer published version: continue on the run's version, or move to the newer one. */
+async function decide(event: RequestEvent, decision: 'continue' | 'move') {
+	const user = requireRole(event, ...DECIDE_ROLES);
+	const id = z.uuid().safeParse(event.params.id);
+	if (!id.success) error(404, 'No such run.');
+	const parsed = decisionSchema.safeParse(Object.fromEntries(await event.request.formData()));
+	const toVersionId = parsed.success ? parsed.data.toVersionId : '';
+	const result = await decideVersion(event.locals.em, user, id.data, { decision, toVersionId });
+	if (!result.ok) {
+		if (result.status === 404) error(404, result.message);
+		return fail(parsed.success ? result.status : 400, {
+			decisionError: parsed.success ? result.message : parsed.error.issues[0].message
+		});
+	}
+	if (decision === 'move') redirect(303, `/runs/${result.value.runId}`);
+	return { decided: 'continue' as const };
+}
+
+export const actions = {
+	continueOn: (event) => decide(event, 'continue'),
+	move: (event) => decide(event, 'move')
 };
