@@ -46,7 +46,7 @@ prompt: Magnet is clean.
 const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
 
 /** A lead, a qualified technician with {@link PIN}, a job, a published version and a run on it assigned to the technician. */
-export async function makeRun(em: EntityManager, opts: { qualified?: boolean } = {}) {
+export async function makeRun(em: EntityManager, opts: { qualified?: boolean; source?: string } = {}) {
 	const lead = await makePerson(em, { roles: ['lead'], pin: PIN, name: 'Test Lead' });
 	const tech = await makePerson(em, { roles: ['technician'], pin: PIN, name: 'Test Technician' });
 	if (opts.qualified ?? true) {
@@ -58,7 +58,7 @@ export async function makeRun(em: EntityManager, opts: { qualified?: boolean } =
 			notes: ''
 		});
 	}
-	const published = await publishInitial(em, runProcedureSource(), {
+	const published = await publishInitial(em, opts.source ?? runProcedureSource(), {
 		author: viewer(lead),
 		approver: viewer(lead),
 		changeNote: 'Test version.'

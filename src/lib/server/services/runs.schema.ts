@@ -72,7 +72,9 @@ export const entriesBodySchema = z.looseObject({
 				checkpointId: z.string().max(48),
 				entry: z.unknown(),
 				/** The verdict the tablet showed; the server's own is what is stored. */
-				claimed: CLAIMED.optional()
+				claimed: CLAIMED.optional(),
+				/** Torque with a preset wrench: the value it was set to for each pass, in the wrench's unit. */
+				setTo: z.array(z.string().max(100)).max(10).optional()
 			})
 		)
 		.max(100)

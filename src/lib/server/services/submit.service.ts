@@ -9,7 +9,10 @@
 import { createHash } from 'node:crypto';
 import { DriverException, UniqueConstraintViolationException } from '@mikro-orm/core';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { evaluate, type Evaluation } from '../../checks/evaluate';
+import { evaluate, type Evaluation, type TorqueToolContext } from '../../checks/evaluate';
+import { exact, gt, mul } from '../../checks/exact';
+import { DEFAULT_MIN_SHARE } from '../../checks/torque';
+import { findUnit } from '../../checks/units';
 import { canonicalize, type JsonValue } from '../../ledger/jcs';
 import { appendTo } from '../../ledger/chain';
 import type { RecordDraft, RecordKind } from '../../ledger/record';
@@ -24,10 +27,11 @@ import * as ledger from '../repositories/ledger';
 import * as pinLocks from '../repositories/pin-locks';
 import { isQualified } from '../repositories/qualifications';
 import * as runs from '../repositories/runs';
-import { findSummary } from '../repositories/tools';
+import { findSummary, type ToolSummary } from '../repositories/tools';
 import * as users from '../repositories/users';
 import { verifyPin } from './accounts.service';
 import { maySee, type Result, type Viewer } from './runs.service';
+import { movedTo } from './run-versions.service';
 import {
 	entriesBodySchema,
 	findingBodySchema,
@@ -122,6 +126,26 @@ interface Checked {
 	overruled: Evaluation[];
 }
 
+/**
+ * A registered torque wrench as the engine's tool context, or undefined for any other kind of tool. The usable range
+ * starts at the register's minimum only when that is above 20 % of the maximum (ISO 6789-1 usable range, see
+ * `DEFAULT_MIN_SHARE`); otherwise the engine's 20 % applies, so a wrench's own wider claim never widens the range.
+ */
+function torqueContext(tool: ToolSummary, setTo: string[] | undefined): TorqueToolContext | undefined {
+	if (tool.kind !== 'torque_click' && tool.kind !== 'torque_indicating') return undefined;
+	const max = exact(tool.rangeMax);
+	const min = exact(tool.rangeMin);
+	const aboveShare = max && min && gt(min, mul(max, DEFAULT_MIN_SHARE));
+	return {
+		kind: tool.kind === 'torque_click' ? 'preset' : 'indicating',
+		...(aboveShare && { min: tool.rangeMin }),
+		max: tool.rangeMax,
+		unit: findUnit(tool.unit)?.id ?? tool.unit,
+		accuracyPercent: tool.accuracyPct,
+		...(setTo && { setTo })
+	};
+}
+
 function stepOf(model: Procedure, index: number): Step | undefined {
 	return model.steps.find((s) => s.index === index);
 }
@@ -156,11 +180,14 @@ async function checkEntries(
 		};
 
 	const toolSnapshots: JsonValue[] = [];
+	/** The first torque wrench the record names is the one its torque checkpoints were tightened with. */
+	let wrench: ToolSummary | undefined;
 	for (const toolId of body.tools) {
 		const tool = await findSummary(em, toolId, now);
 		if (!tool) return { ok: false, reason: `No tool with id ${toolId} is in the register.` };
 		if (!tool.status.usable)
 			return { ok: false, reason: `Tool ${tool.assetTag} cannot be used: ${TOOL_STATUS_TEXT[tool.status.reason]}.` };
+		if (!wrench && torqueContext(tool, undefined)) wrench = tool;
 		toolSnapshots.push(
 			plain({
 				id: tool.id,
@@ -180,7 +207,17 @@ async function checkEntries(
 	for (const e of body.entries) {
 		const cp = step.checkpoints.find((c) => c.id === e.checkpointId);
 		if (!cp) return { ok: false, reason: `Step ${step.index + 1} has no checkpoint ${e.checkpointId}.` };
-		const result = evaluate(cp, e.entry, { checkpoints: all, entries });
+		const tool = cp.kind === 'torque' && wrench ? torqueContext(wrench, e.setTo) : undefined;
+		if (tool && wrench) {
+			// The engine judges the wrench against the target before any reading: its sentences are the refusal.
+			const fit = evaluate(cp, {}, { tool });
+			if (fit.reasons.length > 0)
+				return {
+					ok: false,
+					reason: `Tool ${wrench.assetTag} cannot tighten ${cp.id}: ${fit.reasons.join(' ')}`
+				};
+		}
+		const result = evaluate(cp, e.entry, { checkpoints: all, entries, ...(tool && { tool }) });
 		if (s.kind === 'signoff' && result.status === 'incomplete')
 			return {
 				ok: false,
@@ -368,6 +405,12 @@ async function append(
 			if (known) return known;
 			if (run.state === 'awaiting_review' && !AFTER_REVIEW_KINDS.includes(s.kind))
 				return refused(s.id, 'The run is awaiting review: no more steps can be recorded on it.');
+			const moved = await movedTo(tx, runId);
+			if (moved)
+				return refused(
+					s.id,
+					`${moved.by} moved this run to version ${moved.toVersion} (run ${moved.newRunId}): record on that run.`
+				);
 			const completing = COMPLETING_KINDS.includes(s.kind);
 			const earlier = completing ? await ledger.listForRun(tx, runId) : [];
 			if (s.kind === 'verification') {
