@@ -4,20 +4,10 @@
  * form can only insert a block that parses clean — the problem is shown beside the field that caused it.
  */
 import { z } from 'zod';
-import { CHECKPOINT_ID, parse } from '$lib/procedure';
+import { CHECKPOINT_ID, CHECKPOINT_KINDS, parse } from '$lib/procedure';
 
-export const INSERT_KINDS = [
-	'torque',
-	'measure',
-	'clearance',
-	'confirm',
-	'choice',
-	'part',
-	'fluid',
-	'test',
-	'text',
-	'photo'
-] as const;
+/** Every checkpoint kind has an insert form: the list is the engine's own. */
+export const INSERT_KINDS = CHECKPOINT_KINDS;
 export type InsertKind = (typeof INSERT_KINDS)[number];
 
 export interface FieldSpec {
