@@ -36,7 +36,7 @@ export type JsonValue = string | number | boolean | null | JsonValue[] | { [key:
 export type StoreKey = (string | number)[];
 
 /** The kinds of object in the store, the first element of every key. */
-export type StoreKind = 'meta' | 'run' | 'entry' | 'outbox' | 'refused' | 'photo';
+export type StoreKind = 'meta' | 'run' | 'entry' | 'outbox' | 'refused' | 'photo' | 'signer';
 
 /** Key builders: the one place the key layout is written down. */
 export const KEYS = {
@@ -50,7 +50,9 @@ export const KEYS = {
 	entry: (runId: string, stepId: string, checkpointId: string): StoreKey => ['entry', runId, stepId, checkpointId],
 	outbox: (seq: number): StoreKey => ['outbox', seq],
 	refused: (id: string): StoreKey => ['refused', id],
-	photo: (seq: number): StoreKey => ['photo', seq]
+	photo: (seq: number): StoreKey => ['photo', seq],
+	/** {@link import('./offline-pin').OfflineSigner}: a signer's PIN verifier and server grant on this tablet. */
+	signer: (userId: string): StoreKey => ['signer', userId]
 } as const;
 
 /** One image of a pinned procedure version; `blob` is absent until it has been fetched onto the tablet. */
