@@ -145,6 +145,7 @@ export const MATRIX: MatrixRow[] = [
 	// Runs and the ledger (issue 6). Empty body → 400 for the roles allowed; `[id]` is a person's id, so no such run.
 	{ route: '/api/runs', call: 'POST', expect: api({ lead: 'allowed', admin: 'allowed' }) },
 	{ route: '/api/runs/[id]', call: 'GET', expect: api({}, 'notfound') },
+	{ route: '/api/runs/[id]/runner', call: 'GET', expect: api({}, 'notfound') },
 	{
 		route: '/api/runs/[id]/records',
 		call: 'POST',

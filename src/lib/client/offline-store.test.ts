@@ -118,6 +118,21 @@ describe('schema migration', () => {
 		await again.close();
 	});
 
+	it("the app's own migration to 2 drops runs without a runner view and keeps the outbox", async () => {
+		const dbName = freshDbName('mig-app');
+		const v1 = await openOfflineStore({ dbName, schemaVersion: 1, migrations: { 1: MIGRATIONS[1] } });
+		await v1.set(KEYS.run('run-old'), makeRun('run-old'));
+		await v1.set(KEYS.run('run-new'), { ...makeRun('run-new'), view: { kept: true } });
+		await v1.set(KEYS.outbox(1), { seq: 1, untouched: true });
+		await v1.close();
+		const v2 = await openOfflineStore({ dbName });
+		expect(await v2.get(KEYS.schema())).toBe(SCHEMA_VERSION);
+		expect(await getRun(v2, 'run-old')).toBeUndefined();
+		expect((await getRun(v2, 'run-new'))?.view).toEqual({ kept: true });
+		expect(await v2.get(KEYS.outbox(1))).toEqual({ seq: 1, untouched: true });
+		await v2.close();
+	});
+
 	it('leaves v1 data and version untouched when a migration fails halfway', async () => {
 		const dbName = freshDbName('mig-fail');
 		await plantV1(dbName);

@@ -20,9 +20,10 @@ import {
 	type UseStore
 } from 'idb-keyval';
 import type { Procedure } from '$lib/procedure';
+import type { OfflineRunnerView } from '$lib/server/services/offline.service';
 
 /** The schema this code reads and writes. Raise it by one with each change of shape and add a {@link Migration}. */
-export const SCHEMA_VERSION = 1;
+export const SCHEMA_VERSION = 2;
 
 /** Default database and object-store names on the tablet. */
 export const DEFAULT_DB_NAME = 'benchstamp-offline';
@@ -83,6 +84,8 @@ export interface OfflineRun {
 	takenAt: number;
 	/** Sign-offs made on this tablet, in order; written in the same transaction as their outbox record. */
 	signed: SignedStep[];
+	/** The runner screen's data as the server last gave it (schema 2); the runner renders from this. */
+	view?: OfflineRunnerView;
 }
 
 /** What a technician has typed for one checkpoint and not yet signed (or signed, with the record's id). */
@@ -118,7 +121,12 @@ export type Migration = (tx: StoreTx) => Promise<void>;
  * to convert. Each later entry converts the data written by the version before it.
  */
 export const MIGRATIONS: Record<number, Migration> = {
-	1: async () => {}
+	1: async () => {},
+	// Version 2 keeps the runner's whole view with each run. A version-1 run has none and is dropped: it is fetched
+	// again when the run is next made available. Entries, the outbox and refused records are kept as they are.
+	2: async (tx) => {
+		for (const [key, run] of await tx.range<Partial<OfflineRun>>(['run'])) if (!run.view) tx.del(key);
+	}
 };
 
 /** Thrown by {@link openOfflineStore} when the database was written by newer code than this page. */
