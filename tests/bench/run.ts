@@ -5,6 +5,7 @@
  * and list it in `modules` below.
  */
 import * as procedure from './procedure.bench';
+import * as runner from './runner.bench';
 
 export interface BenchModule {
 	title: string;
@@ -24,7 +25,7 @@ export async function medianMs(fn: () => unknown, runs = 7, warmup = 2): Promise
 	return times[Math.floor(times.length / 2)];
 }
 
-const modules: BenchModule[] = [procedure];
+const modules: BenchModule[] = [procedure, runner];
 
 for (const m of modules) {
 	console.log(`\n== ${m.title}`);

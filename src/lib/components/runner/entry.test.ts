@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { evaluate } from '$lib/checks/evaluate';
 import { parse } from '$lib/procedure/parse';
-import { slotsFor, toEntry, unitSymbol } from './entry';
+import { setToOf, slotsFor, toEntry, toolContextFor, torqueMode, unitSymbol } from './entry';
 
 // Invented test procedure: a 22 mm H7 bore = 22.000–22.021 mm (ISO 286-2: IT7 for 18–30 mm is 21 µm, H → EI = 0).
 const src = `---
@@ -34,5 +34,74 @@ describe('runner entries', () => {
 		expect(good).toEqual({ readings: ['22.010', '22.011'], zeroed: true });
 		expect(evaluate(cp, good).status).toBe('pass');
 		expect(evaluate(cp, toEntry(cp, { values: { r0: '22.010' }, zeroed: true })).status).toBe('incomplete');
+	});
+});
+
+// Invented (not service data): 8 N·m ±10 % in two passes, so pass 1 is 4 N·m (3.6–4.4) and pass 2 is 8 N·m.
+// The click wrench is 2–12 N·m; its usable range starts at 20 % of 12 = 2.4 N·m (ISO 6789-1, DEFAULT_MIN_SHARE).
+const kinds = parse(`---
+title: Kinds
+family: Invented family
+purpose: Test.
+---
+
+## All
+
+\`\`\`torque cover
+target: 8 N·m
+tolerance: ±10 %
+fasteners: [C1, C2]
+passes: 50 %, 100 %
+tool: preset
+\`\`\`
+
+\`\`\`part sensor
+number: KL-4410-##@
+serial: PS########
+\`\`\`
+
+\`\`\`clearance pin
+fit: 8 H7/g6
+\`\`\`
+
+\`\`\`photo plate
+prompt: Plate.
+min: 1
+\`\`\`
+`).procedure!.steps[0].checkpoints;
+const [torque, part, clearance, photo] = kinds;
+const wrench = { kind: 'preset' as const, max: '12', unit: 'N_m', accuracyPercent: '4' };
+
+describe('entries for preset torque, part, clearance and photo', () => {
+	it('records a preset wrench as its settings (setTo) and "reached" taps; the engine passes it', () => {
+		expect(torqueMode(torque, undefined)).toBe('preset');
+		expect(slotsFor(torque, 'preset').map((s) => s.key)).toEqual(['set0', 'set1']);
+		const s = {
+			values: { set0: '4', set1: '8' },
+			reached: { 'p0/C1': true, 'p0/C2': true, 'p1/C1': true, 'p1/C2': true }
+		};
+		expect(setToOf(torque, s, 'preset')).toEqual(['4', '8']);
+		const ctx = toolContextFor(torque, s, wrench);
+		expect(ctx.tool?.setTo).toEqual(['4', '8']);
+		expect(evaluate(torque, toEntry(torque, s, 'preset'), ctx).status).toBe('pass');
+		// Set to 5 N·m for pass 1 (which needs 4 N·m): a fail.
+		const wrong = { ...s, values: { set0: '5', set1: '8' } };
+		expect(evaluate(torque, toEntry(torque, wrong, 'preset'), toolContextFor(torque, wrong, wrench)).status).toBe(
+			'fail'
+		);
+	});
+	it('sends the part fields the checkpoint records, trimmed', () => {
+		expect(toEntry(part, { values: {}, part: { number: ' KL-4410-03C ', serial: 'PS26110451', lot: 'x' } })).toEqual({
+			number: 'KL-4410-03C',
+			serial: 'PS26110451'
+		});
+	});
+	it('asks one direct clearance reading for a fit alone, and photos by id', () => {
+		expect(slotsFor(clearance).map((s) => s.key)).toEqual(['clearance']);
+		expect(unitSymbol(clearance)).toBe('mm');
+		// 8 H7/g6 (ISO 286-2): hole 8.000–8.015, shaft 7.986–7.995 → clearance 0.005–0.029 mm.
+		expect(evaluate(clearance, toEntry(clearance, { values: { clearance: '0.010' } })).status).toBe('pass');
+		expect(evaluate(clearance, toEntry(clearance, { values: { clearance: '0.040' } })).status).toBe('fail');
+		expect(toEntry(photo, { values: {}, photos: [{ id: 'a1', url: '/images/a1' }] })).toEqual({ photos: ['a1'] });
 	});
 });

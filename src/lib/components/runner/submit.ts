@@ -1,5 +1,6 @@
 /** The runner's side of the one submit route (`POST /api/runs/:id/records`). */
 import { uuidv7 } from '$lib/ledger/uuid-v7';
+import { signIfEnrolled } from '$lib/client/device-key';
 
 export interface RecordAnswer {
 	id: string;
@@ -24,13 +25,14 @@ export function deviceId(): string {
 /** Sends one record signed by `signer` with their PIN; answers the server's verdict, or a refusal in words. */
 export async function submitOne(
 	runId: string,
-	kind: 'attempt' | 'signoff' | 'finding' | 'verification',
+	kind: 'attempt' | 'signoff' | 'finding' | 'verification' | 'na_approval' | 'handover' | 'supersession',
 	body: Record<string, unknown>,
 	signer: { id: string; role: string },
 	pin: string
 ): Promise<RecordAnswer> {
 	const id = uuidv7();
-	const record = { id, runId, kind, body, signer, deviceId: deviceId(), signedAt: Date.now() };
+	// An enrolled tablet signs with its device key (and sends its enrolled id); any other browser sends it unsigned.
+	const record = await signIfEnrolled({ id, runId, kind, body, signer, deviceId: deviceId(), signedAt: Date.now() });
 	try {
 		const res = await fetch(`/api/runs/${runId}/records`, {
 			method: 'POST',

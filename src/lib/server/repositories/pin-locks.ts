@@ -1,6 +1,6 @@
 import { LockMode } from '@mikro-orm/core';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { LockState } from '../../signing/pin-lockout';
+import { isLocked, unlock as unlockState, type LockState } from '../../signing/pin-lockout';
 import { PinLock, type IPinLock } from '../db/entities';
 
 /**
@@ -31,4 +31,17 @@ export function apply(row: IPinLock, state: LockState): void {
 	row.lockedUntil = state.lockedUntil === null ? null : new Date(state.lockedUntil);
 	row.lockouts = state.lockouts;
 	row.lastFailureAt = state.lastFailureAt === null ? null : new Date(state.lastFailureAt);
+}
+
+/**
+ * A lead's unlock of one person's signing on one tablet (`pin-lockout` `unlock`: failures and the lock go, the
+ * doubling stays). Returns false, changing nothing, when the person is not locked there at `now`. Call inside a
+ * transaction: the row stays locked until it ends.
+ */
+export async function unlock(tx: EntityManager, userId: string, deviceId: string, now: Date): Promise<boolean> {
+	const row = await lockRow(tx, userId, deviceId);
+	const state = toState(row);
+	if (!isLocked(state, now.getTime())) return false;
+	apply(row, unlockState(state));
+	return true;
 }

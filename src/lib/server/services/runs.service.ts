@@ -6,6 +6,7 @@ import * as adminLog from '../repositories/admin-log';
 import * as jobs from '../repositories/jobs';
 import * as ledger from '../repositories/ledger';
 import * as runs from '../repositories/runs';
+import * as runRecords from '../repositories/run-records';
 import * as users from '../repositories/users';
 import type { StartRunInput } from './runs.schema';
 
@@ -72,14 +73,15 @@ export interface RunView {
 const person = (u: IUser) => ({ id: u.id, name: u.name });
 
 /**
- * "Own runs" of a technician: the runs assigned to them, and the runs in which they signed at least one record (so
- * whoever continued a handed-over run, or helped on one, keeps seeing it). Leads, quality leads and admins see all.
+ * "Own runs" of a technician: the runs assigned to them, the runs in which they signed at least one record (so
+ * whoever continued a handed-over run, or helped on one, keeps seeing it), and the runs a handover names them to
+ * take over. Leads, quality leads and admins see all.
  */
 export async function maySee(em: EntityManager, viewer: Viewer, run: IRun): Promise<boolean> {
 	if (viewer.roles.some((r) => r !== 'technician' && READ_ROLES.includes(r))) return true;
 	if (!viewer.roles.includes('technician')) return false;
 	if ((run.assignedTo as unknown as IUser).id === viewer.id) return true;
-	return runs.hasSigned(em, run.id, viewer.id);
+	return (await runs.hasSigned(em, run.id, viewer.id)) || runRecords.handedOverTo(em, run.id, viewer.id);
 }
 
 /**

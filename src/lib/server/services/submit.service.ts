@@ -15,7 +15,7 @@ import { DEFAULT_MIN_SHARE } from '../../checks/torque';
 import { findUnit } from '../../checks/units';
 import { canonicalize, type JsonValue } from '../../ledger/jcs';
 import { appendTo } from '../../ledger/chain';
-import type { RecordDraft, RecordKind } from '../../ledger/record';
+import type { RecordDraft, RecordKind, StoredRecord } from '../../ledger/record';
 import { uuidv7 } from '../../ledger/uuid-v7';
 import type { Checkpoint, Procedure, Step } from '../../procedure/model';
 import { ENGINE_VERSION } from '../../procedure/version';
@@ -31,7 +31,14 @@ import { findSummary, type ToolSummary } from '../repositories/tools';
 import * as users from '../repositories/users';
 import { verifyPin } from './accounts.service';
 import { maySee, type Result, type Viewer } from './runs.service';
+import { checkSubmission as checkDeviceSignature, deviceStamp } from './devices-signatures';
 import { movedTo } from './run-versions.service';
+import * as r2 from './run-records';
+import { completionRecords, currentRecords } from '../../ledger/step-state';
+import { lateRecordRefusal, stepsToComplete } from './release-guard';
+import { withRecordPhotos } from './run-photos';
+import { priorEntries } from './run-prior-entries';
+import { notifyAwaitingReview } from './quality-mail.service';
 import {
 	entriesBodySchema,
 	findingBodySchema,
@@ -59,11 +66,11 @@ export interface SubmitOptions {
 }
 
 /** Kinds a client may submit today; the rest (N/A approval, supersession…) come with their rules. */
-const ACCEPTED_KINDS: readonly RecordKind[] = ['attempt', 'signoff', 'finding', 'verification'];
+const ACCEPTED_KINDS: readonly RecordKind[] = ['attempt', 'signoff', 'finding', 'verification', ...r2.R2_KINDS];
 /** Roles that may verify a critical step (and the role the verification record must name). */
 export const VERIFY_ROLES = ['lead', 'quality'] as const;
 /** Kinds that may complete a run (and so are checked for completion after they are appended). */
-const COMPLETING_KINDS: readonly RecordKind[] = ['signoff', 'verification'];
+const COMPLETING_KINDS: readonly RecordKind[] = ['signoff', 'verification', 'na_approval'];
 /** Kinds still accepted once a run awaits review. */
 const AFTER_REVIEW_KINDS: readonly RecordKind[] = ['finding'];
 
@@ -96,8 +103,11 @@ function firstIssue(error: { issues: readonly { path: PropertyKey[]; message: st
 
 type PinCheck = { ok: true } | { ok: false; reason: string };
 
-/** One PIN try under the lockout policy, serialised per person per device by the lock-state row. */
-async function checkPin(em: EntityManager, signer: IUser, deviceId: string, pin: string | undefined, now: Date) {
+/**
+ * One PIN try under the lockout policy, serialised per person per device by the lock-state row. Dispositions and
+ * releases (quality) use it too, so a quality lead's PIN locks exactly as a technician's does.
+ */
+export async function checkPin(em: EntityManager, signer: IUser, deviceId: string, pin: string | undefined, now: Date) {
 	if (pin === undefined) return { ok: false, reason: `Enter ${signer.name}'s PIN to sign.` } satisfies PinCheck;
 	return em.fork().transactional(async (tx): Promise<PinCheck> => {
 		const row = await pinLocks.lockRow(tx, signer.id, deviceId);
@@ -131,7 +141,7 @@ interface Checked {
  * starts at the register's minimum only when that is above 20 % of the maximum (ISO 6789-1 usable range, see
  * `DEFAULT_MIN_SHARE`); otherwise the engine's 20 % applies, so a wrench's own wider claim never widens the range.
  */
-function torqueContext(tool: ToolSummary, setTo: string[] | undefined): TorqueToolContext | undefined {
+export function torqueContext(tool: ToolSummary, setTo: string[] | undefined): TorqueToolContext | undefined {
 	if (tool.kind !== 'torque_click' && tool.kind !== 'torque_indicating') return undefined;
 	const max = exact(tool.rangeMax);
 	const min = exact(tool.rangeMin);
@@ -201,7 +211,10 @@ async function checkEntries(
 
 	const all: Record<string, Checkpoint> = {};
 	for (const st of model.steps) for (const c of st.checkpoints) all[c.id] = c;
-	const entries = Object.fromEntries(body.entries.map((e) => [e.checkpointId, e.entry]));
+	const entries = {
+		...(await priorEntries(em, s.runId, step)), // R1: a clearance reads measures signed on earlier steps
+		...Object.fromEntries(body.entries.map((e) => [e.checkpointId, e.entry]))
+	};
 	const evaluation: JsonValue[] = [];
 	const overruled: Evaluation[] = [];
 	for (const e of body.entries) {
@@ -271,10 +284,12 @@ function verificationRefusal(records: ILedgerRecord[], s: Submission, signer: IU
 	return null;
 }
 
-/** Every step has a sign-off, and a verification where it is critical. */
-function isComplete(model: Procedure, records: { kind: string; stepIndex?: number }[]): boolean {
+/** Every step has a sign-off, and a verification where it is critical (a rework run: only its rework steps). */
+function isComplete(model: Procedure, records: { kind: string; stepIndex?: number }[], run?: IRun): boolean {
 	const has = (kind: string, index: number) => records.some((r) => r.kind === kind && r.stepIndex === index);
-	return model.steps.every((st) => has('signoff', st.index) && (!st.critical || has('verification', st.index)));
+	return stepsToComplete(model, run).every(
+		(st) => has('signoff', st.index) && (!st.critical || has('verification', st.index))
+	);
 }
 
 async function duplicateOrReused(
@@ -306,7 +321,11 @@ export async function submitRecords(
 	const answers: RecordAnswer[] = [];
 	for (const [i, raw] of batch.records.entries()) {
 		const fork = em.fork({ clear: true });
-		const prepared = await prepare(fork, raw, i, run, version, batch.pins, pinResults, clock);
+		// R1: photos a record names are checked against storage and their sha256 written by the server.
+		const prepared = await withRecordPhotos(
+			fork,
+			await prepare(fork, raw, i, run, version, batch.pins, pinResults, clock)
+		);
 		answers.push(
 			prepared.kind === 'answer'
 				? prepared.answer
@@ -341,6 +360,9 @@ async function prepare(
 	const known = await duplicateOrReused(em, s.id, fp, run.id);
 	if (known) return answer(known);
 	if (!ACCEPTED_KINDS.includes(s.kind)) return answer(refused(s.id, `Records of kind ${s.kind} are not accepted yet.`));
+	// Device signatures (offline issue, devices-signatures.ts): a revoked or unverifiable tablet's record is held.
+	const deviceCheck = await checkDeviceSignature(em, s, raw, run.id);
+	if (!deviceCheck.ok) return answer(refused(s.id, deviceCheck.reason));
 
 	const signer = await users.findById(em, s.signer.id);
 	if (!signer || !signer.active) return answer(refused(s.id, 'The signer is not an active account.'));
@@ -356,6 +378,12 @@ async function prepare(
 	}
 	if (!pin.ok) return answer(refused(s.id, pin.reason));
 
+	// R2: not-applicable approvals, handovers and corrections (run-records.ts).
+	if ((r2.R2_KINDS as readonly string[]).includes(s.kind)) {
+		const r = await r2.prepareRecord(em, s, signer, version.model);
+		if (!r.ok) return answer(refused(s.id, r.reason));
+		return { kind: 'append', s, fp, signer, extra: r.extra, overruled: [] };
+	}
 	if (s.kind === 'verification') {
 		const v = verificationBodySchema.safeParse(s.body);
 		if (!v.success) return answer(refused(s.id, `body.${firstIssue(v.error)}`));
@@ -385,6 +413,32 @@ async function prepare(
 }
 
 /**
+ * Appends a record the server itself makes (a finding when the tablet's pass was overruled, an export's sha256) at
+ * the run's head. Call inside a transaction holding the run's row lock (`runs.lockForAppend`); it advances the head.
+ */
+export function appendServerRecord(
+	tx: EntityManager,
+	run: IRun,
+	kind: RecordKind,
+	body: JsonValue,
+	serverTime: Date
+): StoredRecord {
+	const head = run.headHash ? { runId: run.id, seq: run.recordCount, hash: run.headHash } : null;
+	const stored = appendTo(head, { id: uuidv7(), runId: run.id, kind, body });
+	ledger.insert(tx, run, stored, {
+		submissionHash: sha256(canonicalize(body)),
+		signerId: null,
+		signerRole: 'server',
+		deviceId: null,
+		deviceTime: null,
+		serverTime,
+		engineVersion: ENGINE_VERSION,
+		signedOffline: false
+	});
+	return stored;
+}
+
+/**
  * Appends one checked record (and a server finding if the tablet's pass was overruled) in one transaction; when the
  * record completes the run (every step signed, critical ones verified) the run moves to `awaiting_review` in that
  * same transaction. The job's own state is left to the people who move it: the job page shows the run's state.
@@ -397,12 +451,16 @@ async function append(
 	clock: () => Date
 ): Promise<RecordAnswer> {
 	const { s } = p;
+	let reachedReview = false;
 	try {
-		return await em.transactional(async (tx) => {
+		const result = await em.transactional(async (tx) => {
 			const run = await runs.lockForAppend(tx, runId);
 			if (!run) return refused(s.id, 'No such run.');
 			const known = await duplicateOrReused(tx, s.id, p.fp, runId);
 			if (known) return known;
+			// Q1: a released run takes no record; a rework run takes records on its rework steps only.
+			const late = await lateRecordRefusal(tx, run, s);
+			if (late) return refused(s.id, late);
 			if (run.state === 'awaiting_review' && !AFTER_REVIEW_KINDS.includes(s.kind))
 				return refused(s.id, 'The run is awaiting review: no more steps can be recorded on it.');
 			const moved = await movedTo(tx, runId);
@@ -412,15 +470,18 @@ async function append(
 					`${moved.by} moved this run to version ${moved.toVersion} (run ${moved.newRunId}): record on that run.`
 				);
 			const completing = COMPLETING_KINDS.includes(s.kind);
-			const earlier = completing ? await ledger.listForRun(tx, runId) : [];
+			const earlier = completing || r2.CHAIN_CHECKED_KINDS.includes(s.kind) ? await ledger.listForRun(tx, runId) : [];
+			const chainWhy = r2.chainRefusal(run, earlier, s, p.signer);
+			if (chainWhy) return refused(s.id, chainWhy);
 			if (s.kind === 'verification') {
-				const why = verificationRefusal(earlier, s, p.signer);
+				const why = verificationRefusal(currentRecords(earlier), s, p.signer);
 				if (why) return refused(s.id, why);
 			}
 			const serverTime = clock();
 			const body = plain({
 				...(s.body as Record<string, JsonValue>),
 				...p.extra,
+				...deviceStamp(s),
 				signer: { id: p.signer.id, name: p.signer.name, role: s.signer.role },
 				device: { id: s.deviceId ?? null, time: s.signedAt === undefined ? null : new Date(s.signedAt).toISOString() },
 				serverTime: serverTime.toISOString(),
@@ -440,7 +501,6 @@ async function append(
 				signedOffline: s.signedOffline ?? false
 			});
 			const findings: string[] = [];
-			let last = stored;
 			for (const ev of p.overruled) {
 				const findingBody = plain({
 					raisedBy: 'server',
@@ -451,27 +511,15 @@ async function append(
 					serverTime: serverTime.toISOString(),
 					engine: ENGINE_VERSION
 				});
-				const finding = appendTo(
-					{ runId, seq: last.seq, hash: last.hash },
-					{ id: uuidv7(), runId, kind: 'finding', body: findingBody }
-				);
-				ledger.insert(tx, run, finding, {
-					submissionHash: sha256(canonicalize(findingBody)),
-					signerId: null,
-					signerRole: 'server',
-					deviceId: null,
-					deviceTime: null,
-					serverTime,
-					engineVersion: ENGINE_VERSION,
-					signedOffline: false
-				});
+				const finding = appendServerRecord(tx, run, 'finding', findingBody, serverTime);
 				findings.push(finding.id);
-				last = finding;
 			}
-			const stepIndex = (s.body as { stepIndex?: number }).stepIndex;
-			const done = [...earlier.map((r) => ({ kind: r.kind, stepIndex: stepIndexOf(r) })), { kind: s.kind, stepIndex }];
-			if (completing && run.state !== 'awaiting_review' && isComplete(model, done)) {
+			r2.afterAppend(tx, run, s, p.signer);
+			// R2: completion counts current sign-offs and N/A steps (a correction voids what it supersedes).
+			const done = completionRecords([...earlier, { id: s.id, kind: s.kind, body: s.body }]);
+			if (completing && run.state !== 'awaiting_review' && isComplete(model, done, run)) {
 				run.state = 'awaiting_review';
+				reachedReview = true;
 				adminLog.append(tx, p.signer, {
 					action: 'run.awaiting_review',
 					subjectType: 'run',
@@ -483,6 +531,9 @@ async function append(
 			const answer: RecordAnswer = { id: s.id, status: 'accepted', seq: stored.seq, hash: stored.hash };
 			return findings.length ? { ...answer, findings } : answer;
 		});
+		// Q3: mail the quality leads only once the transaction has committed; a failed send never fails the record.
+		if (reachedReview) notifyAwaitingReview(em.fork({ clear: true }), runId);
+		return result;
 	} catch (e) {
 		if (e instanceof UniqueConstraintViolationException) {
 			const known = await duplicateOrReused(em.fork({ clear: true }), s.id, p.fp, runId);

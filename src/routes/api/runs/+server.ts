@@ -1,6 +1,7 @@
 import { error, json } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/access';
-import { parseJsonBody } from '$lib/server/registers-json';
+import { parseJsonBody, parseQuery } from '$lib/server/registers-json';
+import { listRuns, runListQuerySchema } from '$lib/server/services/run-list.service';
 import { startRunSchema } from '$lib/server/services/runs.schema';
 import * as runService from '$lib/server/services/runs.service';
 
@@ -18,4 +19,15 @@ export const POST = async (event) => {
 		);
 	}
 	return json(result.value, { status: 201 });
+};
+
+/**
+ * The run list: `?state=&jobId=&assignedTo=&limit=&offset=` → `{ total, limit, offset, runs }`, newest first.
+ * Technicians get their own runs only (assigned, signed in, or handed over to them); the other roles all.
+ */
+export const GET = async (event) => {
+	const user = requireRole(event, ...runService.READ_ROLES);
+	const parsed = parseQuery(event.url, runListQuerySchema);
+	if (parsed.response) return parsed.response;
+	return json(await listRuns(event.locals.em, user, parsed.data), { headers: { 'cache-control': 'no-store' } });
 };

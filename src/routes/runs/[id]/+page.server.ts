@@ -2,6 +2,8 @@ import { error, fail, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
 import { hasAnyRole, requireRole } from '$lib/server/access';
 import { runnerView } from '$lib/server/services/runner.service';
+import { entryContext } from '$lib/server/services/run-entry-context';
+import { runRecordsView } from '$lib/server/services/run-records-view';
 import { DECIDE_ROLES, decideVersion } from '$lib/server/services/run-versions.service';
 import { READ_ROLES, SUBMIT_ROLES } from '$lib/server/services/runs.service';
 import type { RequestEvent } from './$types';
@@ -13,7 +15,9 @@ export const load = async (event) => {
 	const view = id.success ? await runnerView(event.locals.em, user, id.data) : undefined;
 	if (!view?.ok) error(404, 'No such run.');
 	const moved = view.value.versionNotice?.decision?.decision === 'move';
-	return { ...view.value, canSign: hasAnyRole(user, SUBMIT_ROLES) && !moved };
+	const entry = await entryContext(event.locals.em, view.value.model); // R1: lots and wrenches for checkpoint entry
+	const records = await runRecordsView(event.locals.em, view.value.run); // R2: N/A, handover, corrections, unlock
+	return { ...view.value, canSign: hasAnyRole(user, SUBMIT_ROLES) && !moved, entryContext: entry, records };
 };
 
 const decisionSchema = z.object({ toVersionId: z.uuid('Reload the run: the version to decide about is missing.') });

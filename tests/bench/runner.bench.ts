@@ -1,0 +1,229 @@
+/**
+ * The bench runner's numbers (issue 6), each a ratio measured in this one run:
+ * - the JavaScript a `/runs/[id]` page loads, gzipped, against the smallest page of the same build (goal ≤ 120 KB);
+ * - records per second through `submitRecords` against one plain `INSERT` per row of the same rows, each in its own
+ *   transaction, through the `pg` driver with the same pool size (goal ≥ 0.3). The signer's PIN hash uses cheap
+ *   argon2 parameters here so the deliberately slow KDF stays out of that ratio;
+ * - PIN verifications per second with the configured argon2id parameters (src/lib/server/passwords.ts), on its own.
+ * Needs a build for the first (`BENCHSTAMP_KIT_DIR`, default `.svelte-kit`) and PostgreSQL for the others (a
+ * throwaway cluster in a temp directory, stopped and deleted at the end). `BENCH_RECORDS` (default 10000).
+ */
+import { hash } from '@node-rs/argon2';
+import { MikroORM } from '@mikro-orm/postgresql';
+import { existsSync } from 'node:fs';
+import { chmod, mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join, relative } from 'node:path';
+import { gzipSync } from 'node:zlib';
+import { createRequire } from 'node:module';
+import { ormOptions } from '../../mikro-orm.config';
+import { connectClient, freePort, startCluster, stopCluster, type PgQueryResult } from '../../scripts/lib/postgres';
+import { uuidv7 } from '../../src/lib/ledger/uuid-v7';
+import { User } from '../../src/lib/server/db/entities';
+import { hashSecret, verifySecret } from '../../src/lib/server/passwords';
+import { startRun } from '../../src/lib/server/services/runs.service';
+import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
+import { submitRecords } from '../../src/lib/server/services/submit.service';
+import { boreAttempt, makeRun, PIN } from '../factories/runs';
+import { migrateDb } from '../integration/support/migrate';
+
+export const title = 'bench runner: page JavaScript, submit throughput, PIN verifications';
+
+const ROOT = join(import.meta.dirname, '..', '..');
+const JS_GOAL_KB = 120;
+const THROUGHPUT_GOAL = 0.3;
+/** Connections on both sides of the throughput ratio, and runs submitted to at once (one chain each). */
+const POOL = 4;
+const BATCH = 200;
+
+/** The `pg` pool, typed as little as this bench uses (no @types/pg in the project). */
+interface PgPool {
+	query(text: string, values?: unknown[]): Promise<PgQueryResult<unknown>>;
+	end(): Promise<void>;
+}
+const { Pool } = createRequire(import.meta.url)('pg') as {
+	Pool: new (config: { connectionString: string; max: number }) => PgPool;
+};
+
+interface ManifestChunk {
+	file: string;
+	imports?: string[];
+	isEntry?: boolean;
+}
+
+/** Gzipped bytes of the JS a page of `leaf` loads: the client entry, the app, the root layout and the leaf node. */
+async function pageJs(kitDir: string) {
+	const client = join(kitDir, 'output', 'client');
+	const manifest = JSON.parse(await readFile(join(client, '.vite', 'manifest.json'), 'utf8')) as Record<
+		string,
+		ManifestChunk
+	>;
+	const nodesDir = join(kitDir, 'generated', 'client-optimized', 'nodes');
+	const key = (file: string) => relative(ROOT, file);
+	const leaves = new Map<string, string>();
+	for (const f of await readdir(nodesDir)) {
+		const text = await readFile(join(nodesDir, f), 'utf8');
+		const m = text.match(/src\/routes(\/[^"']*)\/\+page\.svelte/);
+		if (m) leaves.set(m[1] || '/', key(join(nodesDir, f)));
+	}
+	const entries = Object.entries(manifest)
+		.filter(([, c]) => c.isEntry)
+		.map(([k]) => k);
+	const start = entries.filter((k) => /entry\/start|client-optimized\/app\.js/.test(k));
+	const layout = key(join(nodesDir, '0.js'));
+	const sizes = new Map<string, number>();
+	async function gz(file: string) {
+		if (!sizes.has(file)) sizes.set(file, gzipSync(await readFile(join(client, file))).length);
+		return sizes.get(file)!;
+	}
+	async function total(leaf: string) {
+		const seen = new Set<string>();
+		const walk = (k: string) => {
+			const c = manifest[k];
+			if (!c || seen.has(c.file)) return;
+			seen.add(c.file);
+			for (const i of c.imports ?? []) walk(i);
+		};
+		for (const k of [...start, layout, leaf]) walk(k);
+		let bytes = 0;
+		for (const f of seen) if (f.endsWith('.js')) bytes += await gz(f);
+		return bytes;
+	}
+	const runner = leaves.get('/runs/[id]');
+	if (!runner) throw new Error('the build has no /runs/[id] page node');
+	let bare = { route: '', bytes: Infinity };
+	for (const [route, leaf] of leaves) {
+		const bytes = await total(leaf);
+		if (bytes < bare.bytes) bare = { route, bytes };
+	}
+	return { runner: await total(runner), bare };
+}
+
+async function submitThroughput(records: number) {
+	const baseDir = await mkdtemp(join(tmpdir(), 'benchstamp-bench-'));
+	await chmod(baseDir, 0o755); // the postgres OS user must reach it when run as root
+	try {
+		const urls = await startCluster({ baseDir, port: await freePort(), database: 'benchstamp', ephemeral: true });
+		await migrateDb(urls.ownerUrl, urls.appUrl);
+		const orm = await MikroORM.init({ ...ormOptions(urls.appUrl), pool: { min: 1, max: POOL } });
+		try {
+			const em = orm.em.fork();
+			const base = await makeRun(em);
+			// Cheap argon2 parameters for this signer only: the KDF is measured on its own below.
+			await em.nativeUpdate(
+				User,
+				{ id: base.tech.id },
+				{ pinHash: await hash(PIN, { memoryCost: 8, timeCost: 1, parallelism: 1 }) }
+			);
+			const viewer = { id: base.lead.id, name: base.lead.name, roles: base.lead.roles };
+			const runIds = [base.runId];
+			while (runIds.length < POOL) {
+				const r = await startRun(orm.em.fork(), viewer, {
+					jobId: base.jobId,
+					procedureVersionId: base.version.id,
+					contentHash: base.version.contentHash,
+					assignedToId: base.tech.id
+				});
+				if (!r.ok) throw new Error(r.message);
+				runIds.push(r.value.id);
+			}
+			const per = Math.ceil(records / POOL);
+			const signer = { id: base.tech.id, role: 'technician' };
+			const t0 = performance.now();
+			await Promise.all(
+				runIds.map(async (runId) => {
+					for (let done = 0; done < per; done += BATCH) {
+						const batch = Array.from({ length: Math.min(BATCH, per - done) }, () => ({
+							id: uuidv7(),
+							runId,
+							kind: 'attempt',
+							body: boreAttempt('22.010'),
+							signer
+						}));
+						const r = await submitRecords(
+							orm.em.fork(),
+							{ id: base.tech.id, name: base.tech.name, roles: base.tech.roles },
+							runId,
+							submitBatchSchema.parse({ records: batch, pins: { [base.tech.id]: PIN } })
+						);
+						if (!r.ok) throw new Error(r.message);
+						const bad = r.value.answers.find((a) => a.status !== 'accepted');
+						if (bad) throw new Error(`${bad.status}: ${bad.reason}`);
+					}
+				})
+			);
+			const submitMs = performance.now() - t0;
+			const stored = per * POOL;
+
+			// The same rows, one INSERT each (autocommit: its own transaction), into a copy of the table.
+			const owner = await connectClient(urls.ownerUrl);
+			await owner.query(`create table bench_ledger (like ledger_record including defaults including indexes)`);
+			await owner.query(`grant insert, select on bench_ledger to benchstamp_app`);
+			const rows = (await owner.query(`select * from ledger_record order by run_id, seq`)).rows as Record<
+				string,
+				unknown
+			>[];
+			await owner.end();
+			const cols = Object.keys(rows[0]);
+			const sql = `insert into bench_ledger (${cols.map((c) => `"${c}"`).join(', ')}) values (${cols.map((_, i) => `$${i + 1}`).join(', ')})`;
+			const pool = new Pool({ connectionString: urls.appUrl, max: POOL });
+			const queues = Array.from({ length: POOL }, (_, i) => rows.filter((_, j) => j % POOL === i));
+			const t1 = performance.now();
+			await Promise.all(
+				queues.map(async (q) => {
+					for (const row of q)
+						await pool.query(
+							sql,
+							cols.map((c) =>
+								row[c] !== null && typeof row[c] === 'object' && !(row[c] instanceof Date)
+									? JSON.stringify(row[c])
+									: row[c]
+							)
+						);
+				})
+			);
+			const insertMs = performance.now() - t1;
+			await pool.end();
+			return {
+				stored,
+				submitPerS: stored / (submitMs / 1000),
+				inserted: rows.length,
+				insertPerS: rows.length / (insertMs / 1000)
+			};
+		} finally {
+			await orm.close(true);
+		}
+	} finally {
+		await stopCluster(baseDir).catch(() => undefined);
+		await rm(baseDir, { recursive: true, force: true });
+	}
+}
+
+async function pinRate(n = 10) {
+	const stored = await hashSecret(PIN);
+	await verifySecret(stored, PIN);
+	const t0 = performance.now();
+	for (let i = 0; i < n; i++) if (!(await verifySecret(stored, PIN))) throw new Error('PIN did not verify');
+	return n / ((performance.now() - t0) / 1000);
+}
+
+export async function main() {
+	const kitDir = process.env.BENCHSTAMP_KIT_DIR ?? join(ROOT, '.svelte-kit');
+	if (existsSync(join(kitDir, 'output', 'client', '.vite', 'manifest.json'))) {
+		const js = await pageJs(kitDir);
+		const kb = (b: number) => (b / 1024).toFixed(1);
+		console.log(
+			`runner page JS: ${kb(js.runner)} KiB gz (goal ≤ ${JS_GOAL_KB}) vs smallest page ${js.bare.route} ` +
+				`${kb(js.bare.bytes)} KiB gz → ratio ${(js.runner / js.bare.bytes).toFixed(2)}×`
+		);
+	} else console.log(`runner page JS: no build in ${kitDir} (run a vite build first); skipped`);
+
+	const records = Number(process.env.BENCH_RECORDS ?? 10_000);
+	const t = await submitThroughput(records);
+	console.log(
+		`submit: ${t.stored} records in ${POOL} runs at ${t.submitPerS.toFixed(0)} records/s; plain INSERT of the same ` +
+			`${t.inserted} rows at ${t.insertPerS.toFixed(0)} rows/s (pool ${POOL}) → ratio ` +
+			`${(t.submitPerS / t.insertPerS).toFixed(3)} (goal ≥ ${THROUGHPUT_GOAL})`
+	);
+	console.log(`PIN verifications (argon2id m=19456 KiB, t=2, p=1): ${(await pinRate()).toFixed(1)} per second`);
+}
