@@ -271,6 +271,8 @@ export interface RunRecordRow {
 	text: string | null;
 	entries: RecordEntry[];
 	tools: RecordTool[];
+	/** R2: a correction names the record it supersedes, and why. */
+	supersedes?: { id: string; reason: string } | null;
 }
 
 export interface RunRecordView {
@@ -379,7 +381,8 @@ export async function runRecord(em: EntityManager, runId: string): Promise<RunRe
 				hash: r.hash,
 				text: str(b.text),
 				entries: entriesOf(b),
-				tools: toolsOf(b)
+				tools: toolsOf(b),
+				supersedes: r.kind === 'supersession' ? { id: str(b.supersedes) ?? '', reason: str(b.reason) ?? '' } : null
 			};
 		})
 	};

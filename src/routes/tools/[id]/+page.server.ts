@@ -23,6 +23,8 @@ export const load = async (event) => {
 		records: records.map(tools.toCalibrationRecord),
 		registered: event.url.searchParams.has('registered'),
 		canEdit: hasAnyRole(user, REGISTER_ROLES.edit),
+		// Quality leads get the link to the runs signed with this tool since its last good calibration (issue 8).
+		canAudit: hasAnyRole(user, ['quality']),
 		detailsForm: await superValidate(
 			entity
 				? {

@@ -18,6 +18,15 @@ export const LedgerRecord = defineEntity({
 		{ properties: ['run', 'seq'], name: 'ledger_record_run_seq_unique' },
 		{ properties: ['run', 'prevHash'], name: 'ledger_record_run_prev_hash_unique' }
 	],
+	// Audit search (issue 8, Q2): records by signer and time, and `body @> …` containment for lot trace and suspect tool.
+	indexes: [
+		{ properties: ['signerId', 'serverTime'], name: 'ledger_record_signer_time_index' },
+		{ properties: ['serverTime'], name: 'ledger_record_server_time_index' },
+		{
+			name: 'ledger_record_body_path_index',
+			expression: 'create index "ledger_record_body_path_index" on "ledger_record" using gin ("body" jsonb_path_ops)'
+		}
+	],
 	properties: {
 		id: p.uuid().primary(),
 		run: () => p.manyToOne(Run),

@@ -3,8 +3,11 @@ import { Job } from './job.entity';
 import { ProcedureVersion } from './procedure-version.entity';
 import { User } from './user.entity';
 
-/** Where a run stands. `paused` is a run left at the end of a shift; `awaiting_review` once every step is signed. */
-export const RUN_STATES = ['in_progress', 'paused', 'awaiting_review'] as const;
+/**
+ * Where a run stands. `paused` is a run left at the end of a shift; `awaiting_review` once every step is signed;
+ * `released` once a quality lead signed its release (read-only from then on).
+ */
+export const RUN_STATES = ['in_progress', 'paused', 'awaiting_review', 'released'] as const;
 export type RunState = (typeof RUN_STATES)[number];
 
 /**
@@ -25,6 +28,12 @@ export const Run = defineEntity({
 		state: p.enum([...RUN_STATES]).$type<RunState>(),
 		headHash: p.string().length(64).nullable(),
 		recordCount: p.integer().default(0),
+		/** Set on a rework run: the run whose finding was dispositioned as rework (issue 8). */
+		reworkOf: () => p.manyToOne(Run).nullable().index(),
+		/** A rework run's 0-based step indexes: only these must be signed (and verified where critical). */
+		reworkSteps: p.json<number[]>().nullable(),
+		/** The finding (ledger record id) whose rework disposition opened this run. */
+		reworkFindingId: p.uuid().nullable(),
 		createdAt: p.datetime().onCreate(() => new Date()),
 		updatedAt: p
 			.datetime()

@@ -2,6 +2,8 @@ import { error } from '@sveltejs/kit';
 import { z } from 'zod';
 import { requireRole } from '$lib/server/access';
 import { runRecord } from '$lib/server/services/audit.service';
+import { customerRecordForm, sendRecordAction } from './customer-record.server';
+import { releaseJobAction, releaseLoad, releaseRunAction } from './release.server';
 
 /** The run record: every ledger record of the run in chain order, for audit and print. */
 export const load = async (event) => {
@@ -9,5 +11,11 @@ export const load = async (event) => {
 	const id = z.uuid().safeParse(event.params.id);
 	const record = id.success ? await runRecord(event.locals.em, id.data) : null;
 	if (!record) error(404, 'No such run.');
-	return { record };
+	return { record, customerForm: await customerRecordForm(), ...(await releaseLoad(event, record.id)) };
+};
+
+export const actions = {
+	sendRecord: sendRecordAction,
+	releaseRun: releaseRunAction,
+	releaseJob: releaseJobAction
 };

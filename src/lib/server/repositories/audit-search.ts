@@ -1,0 +1,289 @@
+/**
+ * Read-only SQL over runs and the jsonb bodies of their ledger records, for the quality lead's search, lot trace and
+ * suspect-tool questions. Every value travels as a bound parameter (`?`); only whitelisted column names and fixed
+ * SQL fragments are ever put into the text. Containment (`body @> ?::jsonb`) uses the GIN `jsonb_path_ops` index of
+ * migration `…_audit_search_indexes`; signer and time use `(signer_id, server_time)` and `(server_time)`.
+ */
+import type { EntityManager } from '@mikro-orm/postgresql';
+
+/** Sortable columns of the search table → SQL (whitelist: the query schema only allows these keys). */
+export const RUN_SORTS = {
+	lastAt: 's.last_at',
+	firstAt: 's.first_at',
+	jobNumber: 'j.job_number',
+	unitSerial: 'j.serial_key',
+	procedure: 'p.title',
+	technician: 'u.name',
+	records: 'r.record_count',
+	findings: 's.findings'
+} as const;
+export type RunSort = keyof typeof RUN_SORTS;
+
+export interface RunFilter {
+	signerId?: string;
+	procedureId?: string;
+	version?: number;
+	/** Inclusive UTC day bounds, `YYYY-MM-DD`, on the server time of the records (the signer's, when one is given). */
+	from?: string;
+	to?: string;
+	findings?: 'yes' | 'no';
+	/** Part of a unit serial, compared as the job's serial key (upper case, no spaces/dashes/dots). */
+	serialKey?: string;
+	/** A part lot or serial number recorded in a part or fluid entry. */
+	lot?: string;
+	state?: string;
+	sort: RunSort;
+	dir: 'asc' | 'desc';
+	limit: number;
+	offset: number;
+}
+
+export interface RunRow {
+	id: string;
+	state: string;
+	records: number;
+	jobId: string;
+	jobNumber: string;
+	unitSerial: string;
+	unitModel: string;
+	procedureId: string;
+	procedure: string;
+	version: number;
+	technician: string;
+	findings: number;
+	firstAt: string | null;
+	lastAt: string | null;
+}
+
+interface RawRunRow {
+	id: string;
+	state: string;
+	record_count: number;
+	job_id: string;
+	job_number: string;
+	unit_serial: string;
+	unit_model: string;
+	procedure_id: string;
+	procedure: string;
+	version: number;
+	technician: string;
+	findings: string | number;
+	first_at: Date | null;
+	last_at: Date | null;
+	total: string | number;
+}
+
+const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
+const nextDay = (day: string) => new Date(Date.parse(`${day}T00:00:00Z`) + 86_400_000).toISOString();
+const escapeLike = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
+
+/**
+ * The jsonb documents a lot/serial match is tested with: a `lot` or a `serial` in any entry, as typed, upper- or
+ * lower-cased (the register keeps lot numbers upper case; patterns accept letters in either case, so a technician may
+ * have typed either). Mixed-case typing is not matched: containment is exact, which is what lets the GIN index answer.
+ */
+export function lotProbes(lot: string): string[] {
+	const forms = [...new Set([lot, lot.toUpperCase(), lot.toLowerCase()])];
+	return forms.flatMap((v) => [
+		JSON.stringify({ entries: [{ entry: { lot: v } }] }),
+		JSON.stringify({ entries: [{ entry: { serial: v } }] })
+	]);
+}
+
+/** SQL + parameters: a record of the run `alias` whose body contains one of `probes` (never an attempt). */
+function containsAny(alias: string, probes: string[]): string {
+	return `${alias}.kind <> 'attempt' and (${probes.map(() => `${alias}.body @> ?::jsonb`).join(' or ')})`;
+}
+
+/** One page of runs matching `f`, and how many match in all. */
+export async function searchRuns(em: EntityManager, f: RunFilter): Promise<{ rows: RunRow[]; total: number }> {
+	const where: string[] = [];
+	const params: unknown[] = [];
+	if (f.signerId || f.from || f.to) {
+		const conds = ['l.run_id = r.id'];
+		if (f.signerId) {
+			conds.push('l.signer_id = ?');
+			params.push(f.signerId);
+		}
+		if (f.from) {
+			conds.push('l.server_time >= ?');
+			params.push(`${f.from}T00:00:00.000Z`);
+		}
+		if (f.to) {
+			conds.push('l.server_time < ?');
+			params.push(nextDay(f.to));
+		}
+		where.push(`exists (select 1 from ledger_record l where ${conds.join(' and ')})`);
+	}
+	if (f.procedureId) {
+		where.push('p.id = ?');
+		params.push(f.procedureId);
+	}
+	if (f.version !== undefined) {
+		where.push('pv.number = ?');
+		params.push(f.version);
+	}
+	if (f.findings) where.push(f.findings === 'yes' ? 's.findings > 0' : 's.findings = 0');
+	if (f.serialKey) {
+		where.push(`j.serial_key like ? escape '\\'`);
+		params.push(`%${escapeLike(f.serialKey)}%`);
+	}
+	if (f.lot) {
+		const probes = lotProbes(f.lot);
+		where.push(`exists (select 1 from ledger_record l2 where l2.run_id = r.id and ${containsAny('l2', probes)})`);
+		params.push(...probes);
+	}
+	if (f.state) {
+		where.push('r.state = ?');
+		params.push(f.state);
+	}
+	const order = `${RUN_SORTS[f.sort]} ${f.dir === 'asc' ? 'asc' : 'desc'} nulls last, r.id asc`;
+	const sql = `
+		select r.id, r.state, r.record_count, j.id as job_id, j.job_number, j.unit_serial, j.unit_model,
+			p.id as procedure_id, p.title as procedure, pv.number as version, u.name as technician,
+			s.findings, s.first_at, s.last_at, count(*) over () as total
+		from run r
+		join job j on j.id = r.job_id
+		join procedure_version pv on pv.id = r.procedure_version_id
+		join procedure p on p.id = pv.procedure_id
+		join app_user u on u.id = r.assigned_to_id
+		cross join lateral (
+			select count(*) filter (where lr.kind = 'finding') as findings,
+				min(lr.server_time) as first_at, max(lr.server_time) as last_at
+			from ledger_record lr where lr.run_id = r.id
+		) s
+		${where.length ? `where ${where.join(' and ')}` : ''}
+		order by ${order}
+		limit ? offset ?`;
+	const raw = await em.getConnection().execute<RawRunRow[]>(sql, [...params, f.limit, f.offset]);
+	// Past the last page there is no row to carry the count: ask for the first row only.
+	const total = raw.length
+		? Number(raw[0].total)
+		: f.offset > 0
+			? (await searchRuns(em, { ...f, offset: 0, limit: 1 })).total
+			: 0;
+	return {
+		total,
+		rows: raw.map((x) => ({
+			id: x.id,
+			state: x.state,
+			records: x.record_count,
+			jobId: x.job_id,
+			jobNumber: x.job_number,
+			unitSerial: x.unit_serial,
+			unitModel: x.unit_model,
+			procedureId: x.procedure_id,
+			procedure: x.procedure,
+			version: x.version,
+			technician: x.technician,
+			findings: Number(x.findings),
+			firstAt: iso(x.first_at),
+			lastAt: iso(x.last_at)
+		}))
+	};
+}
+
+/** The bodies' `entries` of the records of `runIds` that contain the lot/serial (to show which part matched). */
+export async function lotEntries(
+	em: EntityManager,
+	runIds: string[],
+	lot: string
+): Promise<{ runId: string; stepIndex: number | null; entries: unknown }[]> {
+	if (!runIds.length) return [];
+	const probes = lotProbes(lot);
+	const rows = await em.getConnection().execute<{ run_id: string; step_index: number | null; entries: unknown }[]>(
+		`select l.run_id, (l.body->>'stepIndex')::int as step_index, l.body->'entries' as entries
+			from ledger_record l where l.run_id in (${runIds.map(() => '?').join(', ')}) and ${containsAny('l', probes)}
+			order by l.run_id, l.seq`,
+		[...runIds, ...probes]
+	);
+	return rows.map((r) => ({ runId: r.run_id, stepIndex: r.step_index, entries: r.entries }));
+}
+
+export interface ToolRecordRow {
+	recordId: string;
+	runId: string;
+	seq: number;
+	kind: string;
+	stepIndex: number | null;
+	signer: string | null;
+	serverTime: string;
+	jobId: string;
+	jobNumber: string;
+	unitSerial: string;
+	procedure: string;
+	version: number;
+	runState: string;
+}
+
+/**
+ * Every ledger record whose tool snapshots name `toolId`, signed at or after `since` (all of them when null), in
+ * time order, with its run, job and procedure.
+ */
+export async function recordsWithTool(em: EntityManager, toolId: string, since: Date | null): Promise<ToolRecordRow[]> {
+	const probe = JSON.stringify({ toolSnapshots: [{ id: toolId }] });
+	const rows = await em.getConnection().execute<
+		{
+			id: string;
+			run_id: string;
+			seq: number;
+			kind: string;
+			step_index: number | null;
+			signer: string | null;
+			server_time: Date;
+			job_id: string;
+			job_number: string;
+			unit_serial: string;
+			procedure: string;
+			version: number;
+			state: string;
+		}[]
+	>(
+		`select l.id, l.run_id, l.seq, l.kind, (l.body->>'stepIndex')::int as step_index,
+			l.body->'signer'->>'name' as signer, l.server_time, j.id as job_id, j.job_number, j.unit_serial,
+			p.title as procedure, pv.number as version, r.state
+		from ledger_record l
+		join run r on r.id = l.run_id
+		join job j on j.id = r.job_id
+		join procedure_version pv on pv.id = r.procedure_version_id
+		join procedure p on p.id = pv.procedure_id
+		where l.body @> ?::jsonb ${since ? 'and l.server_time >= ?' : ''}
+		order by l.server_time asc, l.run_id, l.seq`,
+		since ? [probe, since.toISOString()] : [probe]
+	);
+	return rows.map((r) => ({
+		recordId: r.id,
+		runId: r.run_id,
+		seq: r.seq,
+		kind: r.kind,
+		stepIndex: r.step_index,
+		signer: r.signer,
+		serverTime: new Date(r.server_time).toISOString(),
+		jobId: r.job_id,
+		jobNumber: r.job_number,
+		unitSerial: r.unit_serial,
+		procedure: r.procedure,
+		version: r.version,
+		runState: r.state
+	}));
+}
+
+/** The people who signed at least one record (for the signer filter), by name. */
+export function signers(em: EntityManager): Promise<{ id: string; name: string }[]> {
+	return em
+		.getConnection()
+		.execute<{ id: string; name: string }[]>(
+			`select u.id, u.name from app_user u where exists (select 1 from ledger_record l where l.signer_id = u.id) order by u.name, u.id`
+		);
+}
+
+/** Every procedure with its published version numbers (for the procedure and version filters). */
+export async function procedureVersions(
+	em: EntityManager
+): Promise<{ id: string; title: string; versions: number[] }[]> {
+	const rows = await em.getConnection().execute<{ id: string; title: string; versions: number[] }[]>(
+		`select p.id, p.title, array_agg(pv.number order by pv.number) as versions
+			from procedure p join procedure_version pv on pv.procedure_id = p.id group by p.id, p.title order by p.title`
+	);
+	return rows.map((r) => ({ id: r.id, title: r.title, versions: r.versions.map(Number) }));
+}
