@@ -16,13 +16,23 @@ const log = (m: string) => console.log(`benchstamp: ${m}`);
 async function main() {
 	const { mode, env } = await prepare(root, log);
 	buildIfNeeded(root, log);
-	const port = Number(process.env.PORT ?? 3000);
-	const origin = process.env.ORIGIN ?? `http://localhost:${port}`;
-	const server = spawn(process.execPath, [join(root, 'build', 'index.js')], {
-		cwd: root,
-		stdio: 'inherit',
-		env: { ...process.env, ...env, PORT: String(port), HOST: process.env.HOST ?? '127.0.0.1', ORIGIN: origin }
-	});
+	// HTTPS=1 or --https: the shop network (scripts/https-server.ts, its own or a generated local CA's certificate).
+	const https = process.env.HTTPS === '1' || process.argv.includes('--https');
+	const port = Number(process.env.PORT ?? (https ? 3443 : 3000));
+	const origin =
+		process.env.ORIGIN ?? (https ? `https://<this machine's LAN name>:${port}` : `http://localhost:${port}`);
+	const server = https
+		? spawn(process.execPath, ['--import', 'tsx', join(root, 'scripts', 'https-server.ts')], {
+				cwd: root,
+				stdio: 'inherit',
+				// No ORIGIN unless given: over HTTPS the app takes it from the Host header (every LAN name works).
+				env: { ...process.env, ...env, PORT: String(port), HOST: process.env.HOST ?? '0.0.0.0' }
+			})
+		: spawn(process.execPath, [join(root, 'build', 'index.js')], {
+				cwd: root,
+				stdio: 'inherit',
+				env: { ...process.env, ...env, PORT: String(port), HOST: process.env.HOST ?? '127.0.0.1', ORIGIN: origin }
+			});
 	for (const signal of ['SIGINT', 'SIGTERM'] as const) process.on(signal, () => server.kill(signal));
 	server.on('exit', (code) => process.exit(code ?? 0));
 

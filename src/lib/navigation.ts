@@ -17,6 +17,8 @@ export const NAV: readonly NavItem[] = [
 	{ href: '/parts', label: 'Parts', icon: 'plus-minus', roles: ['lead', 'quality', 'admin'] },
 	{ href: '/qualifications', label: 'Training', icon: 'check', roles: ['lead', 'quality', 'admin'] },
 	{ href: '/quality', label: 'Quality', icon: 'audit', roles: ['quality'] },
+	{ href: '/quality/held', label: 'Held records', icon: 'pending', roles: ['quality'] },
+	{ href: '/bench/devices', label: 'Tablets', icon: 'lock', roles: ['lead'] },
 	{ href: '/admin/people', label: 'People', icon: 'user', roles: ['admin'] },
 	{ href: '/admin/log', label: 'Admin log', icon: 'lock', roles: ['admin'] },
 	{ href: '/dev/outbox', label: 'Outbox', icon: 'info', roles: ['admin'], demoOnly: true },

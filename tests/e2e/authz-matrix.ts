@@ -74,6 +74,17 @@ export const MATRIX: MatrixRow[] = [
 		expect: signedIn({ technician: 'allowed', lead: 'allowed', quality: 'allowed', admin: 'allowed' })
 	},
 	{ route: '/bench', call: 'GET', expect: signedIn({ technician: 'ok', lead: 'ok' }) },
+	// Enrolled tablets and the held-records queue (offline issue, O). Empty forms are 400 (allowed).
+	{ route: '/bench/devices', call: 'GET', expect: signedIn({ lead: 'ok' }) },
+	{ route: '/bench/devices', call: 'POST ?/enrol', expect: signedIn({ lead: 'allowed' }) },
+	{ route: '/bench/devices', call: 'POST ?/revoke', expect: signedIn({ lead: 'allowed' }) },
+	{ route: '/api/devices', call: 'GET', expect: api({ lead: 'ok', quality: 'ok', admin: 'ok' }) },
+	{ route: '/quality/held', call: 'GET', expect: signedIn({ quality: 'ok' }) },
+	{ route: '/quality/held', call: 'POST ?/resolve', expect: signedIn({ quality: 'allowed' }) },
+	{ route: '/api/audit/held', call: 'GET', expect: api({ quality: 'ok' }) },
+	// The shop CA and its install steps are public; the certificate itself exists only while HTTPS uses a generated CA.
+	{ route: '/tls', call: 'GET', expect: everyone('ok') },
+	{ route: '/tls/ca.crt', call: 'GET', expect: everyone('notfound') },
 	{ route: '/library', call: 'GET', expect: signedIn({ technician: 'ok', lead: 'ok', quality: 'ok', admin: 'ok' }) },
 	// Procedure library (issue 4). `[id]` is a person's id here, so no such procedure: allowed roles get 404.
 	{ route: '/library', call: 'POST ?/importDemo', expect: signedIn({ lead: 'allowed', admin: 'allowed' }) },
@@ -128,6 +139,34 @@ export const MATRIX: MatrixRow[] = [
 	{ route: '/quality/runs/[id]', call: 'GET', expect: signedIn({ quality: 'notfound' }) },
 	{ route: '/api/runs/[id]/verify', call: 'POST', expect: api({ quality: 'notfound', admin: 'notfound' }) },
 	{ route: '/api/ledger/verify', call: 'POST', expect: api({ quality: 'ok', admin: 'ok' }) },
+	// Findings, dispositions and release (issue 8, Q1): quality only. `[id]` is a person's id, so no such finding,
+	// run or job: the pages and their form actions answer 404 (an action's refusal re-renders the page, whose load
+	// finds nothing); the JSON routes check the body first, so an empty one is a 400. Per-record cases (a quality lead
+	// deciding a finding they raised or worked on, releasing a run they signed in) are tests/integration/release.test.ts
+	// and quality-release.spec.ts.
+	{ route: '/quality/findings/[id]', call: 'GET', expect: signedIn({ quality: 'notfound' }) },
+	{ route: '/quality/findings/[id]', call: 'POST ?/dispose', expect: signedIn({ quality: 'notfound' }) },
+	{ route: '/quality/runs/[id]', call: 'POST ?/releaseRun', expect: signedIn({ quality: 'notfound' }) },
+	{ route: '/quality/runs/[id]', call: 'POST ?/releaseJob', expect: signedIn({ quality: 'notfound' }) },
+	{ route: '/api/findings', call: 'GET', expect: api({ quality: 'ok' }) },
+	{ route: '/api/findings/[id]/disposition', call: 'POST', expect: api({ quality: 'allowed' }) },
+	{ route: '/api/audit/runs/[id]/release', call: 'POST', expect: api({ quality: 'allowed' }) },
+	{ route: '/api/audit/jobs/[id]/release', call: 'POST', expect: api({ quality: 'allowed' }) },
+	// Search across runs, suspect tool and trends (issue 8, Q2): quality only. `[id]` is a person's id, so no such tool
+	// (404); the JSON routes without their required parameter answer 400 (allowed), the search with none answers 200.
+	{ route: '/quality/search', call: 'GET', expect: signedIn({ quality: 'ok' }) },
+	{ route: '/quality/search/tool/[id]', call: 'GET', expect: signedIn({ quality: 'notfound' }) },
+	{ route: '/quality/trends', call: 'GET', expect: signedIn({ quality: 'ok' }) },
+	{ route: '/api/audit/runs', call: 'GET', expect: api({ quality: 'ok' }) },
+	{ route: '/api/audit/suspect-tool', call: 'GET', expect: api({ quality: 'allowed' }) },
+	{ route: '/api/audit/trends', call: 'GET', expect: api({ quality: 'allowed' }) },
+	// Exports (issue 8, Q3): quality only; `[id]` is a person's id, so no such run. The customer's record is public:
+	// an unknown token shows the "link does not work" page (200); its photo route answers 404.
+	{ route: '/api/exports/runs/[id]/pdf', call: 'GET', expect: api({ quality: 'notfound' }) },
+	{ route: '/api/exports/runs/[id]/csv', call: 'GET', expect: api({ quality: 'notfound' }) },
+	{ route: '/quality/runs/[id]', call: 'POST ?/sendRecord', expect: signedIn({ quality: 'notfound' }) },
+	{ route: '/record/[token]', call: 'GET', expect: everyone('ok') },
+	{ route: '/record/[token]/photos/[id]', call: 'GET', expect: everyone('notfound') },
 	{ route: '/admin/people', call: 'GET', expect: adminOnly('ok') },
 	{ route: '/admin/people', call: 'POST ?/invite', expect: adminOnly('allowed') },
 	{ route: '/admin/people/[id]', call: 'GET', expect: adminOnly('ok') },
@@ -144,6 +183,13 @@ export const MATRIX: MatrixRow[] = [
 	...registerRows(),
 	// Runs and the ledger (issue 6). Empty body → 400 for the roles allowed; `[id]` is a person's id, so no such run.
 	{ route: '/api/runs', call: 'POST', expect: api({ lead: 'allowed', admin: 'allowed' }) },
+	// R2: the run list (technicians their own runs), and a lead's PIN unlock from the runner (empty body → 400).
+	{ route: '/api/runs', call: 'GET', expect: api({ technician: 'ok', lead: 'ok', quality: 'ok', admin: 'ok' }) },
+	{
+		route: '/api/runs/[id]/unlock',
+		call: 'POST',
+		expect: api({ technician: 'allowed', lead: 'allowed', quality: 'allowed' })
+	},
 	{ route: '/api/runs/[id]', call: 'GET', expect: api({}, 'notfound') },
 	{ route: '/api/runs/[id]/runner', call: 'GET', expect: api({}, 'notfound') },
 	{

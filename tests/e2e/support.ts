@@ -17,12 +17,12 @@ export const DEMO = {
 	lead: {
 		email: 'lead@example.com',
 		home: '/library',
-		nav: ['Bench', 'Procedures', 'Jobs', 'Tools', 'Parts', 'Training', 'My account']
+		nav: ['Bench', 'Procedures', 'Jobs', 'Tools', 'Parts', 'Training', 'Tablets', 'My account']
 	},
 	quality: {
 		email: 'quality@example.com',
 		home: '/quality',
-		nav: ['Procedures', 'Jobs', 'Tools', 'Parts', 'Training', 'Quality', 'My account']
+		nav: ['Procedures', 'Jobs', 'Tools', 'Parts', 'Training', 'Quality', 'Held records', 'My account']
 	},
 	admin: {
 		email: 'admin@example.com',

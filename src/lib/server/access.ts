@@ -3,7 +3,8 @@ import type { RoleName } from '$lib/accounts/schema';
 import type { SessionUser } from './session-user';
 
 /** Paths anyone may open; everything else needs a signed-in person. */
-const PUBLIC_PREFIXES = ['/signin', '/welcome/', '/reset/', '/api/health'];
+// `/tls`: the shop CA certificate and its install steps (a tablet needs them before it can trust the sign-in page).
+const PUBLIC_PREFIXES = ['/signin', '/welcome/', '/reset/', '/api/health', '/record/', '/tls'];
 
 /** Coarse rules by path prefix, checked in hooks; each route checks again with `requireRole`. */
 export const AREA_ROLES: { prefix: string; roles: RoleName[] }[] = [
@@ -12,8 +13,21 @@ export const AREA_ROLES: { prefix: string; roles: RoleName[] }[] = [
 	{ prefix: '/quality', roles: ['quality'] },
 	// Verifying the whole ledger (issue 8): quality leads and admins.
 	{ prefix: '/api/ledger', roles: ['quality', 'admin'] },
+	// Exports of the run record (issue 8, Q3): quality leads only; the customer's record is public behind its token.
+	{ prefix: '/api/exports', roles: ['quality'] },
 	{ prefix: '/library', roles: ['technician', 'lead', 'quality', 'admin'] },
 	{ prefix: '/bench', roles: ['technician', 'lead'] },
+	// Enrolled tablets (offline issue, O): leads enrol/revoke on /bench/devices; the list is for leads, quality, admins.
+	{ prefix: '/api/devices', roles: ['lead', 'quality', 'admin'] },
+	// The held-records queue (offline issue, O): quality leads.
+	{ prefix: '/api/audit/held', roles: ['quality'] },
+	// Findings, dispositions and release (issue 8, Q1): quality leads only.
+	{ prefix: '/api/findings', roles: ['quality'] },
+	{ prefix: '/api/audit/runs', roles: ['quality'] },
+	{ prefix: '/api/audit/jobs', roles: ['quality'] },
+	// Search across runs (`/api/audit/runs`, above), suspect tool and trends (issue 8, Q2): quality leads only.
+	{ prefix: '/api/audit/suspect-tool', roles: ['quality'] },
+	{ prefix: '/api/audit/trends', roles: ['quality'] },
 	// Registers (issue 5): everyone reads jobs and tools; parts and training are for leads, quality and admins.
 	{ prefix: '/jobs', roles: ['technician', 'lead', 'quality', 'admin'] },
 	{ prefix: '/tools', roles: ['technician', 'lead', 'quality', 'admin'] },

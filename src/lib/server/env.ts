@@ -16,6 +16,9 @@ const schema = z.object({
 	MAIL_FROM: z.string().default('Benchstamp <benchstamp@localhost>'),
 	MAIL_DIR: z.string().optional(),
 	FAKE_SMTP_PORT: z.coerce.number().int().min(0).max(65535).default(2526),
+	// The daily digest of chain heads to quality (issue 8): on by default in production, opt-in in demo mode.
+	DIGEST_TIMER: z.enum(['on', 'off']).optional(),
+	DIGEST_HOUR_UTC: z.coerce.number().int().min(0).max(23).default(6),
 	// Object storage (any S3-API service). Unset S3_BUCKET in demo mode: the app runs its own fake on 127.0.0.1.
 	S3_ENDPOINT: z.string().url('must be a URL such as http://127.0.0.1:9000').optional(),
 	S3_REGION: z.string().min(1).default('us-east-1'),

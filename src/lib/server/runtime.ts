@@ -1,6 +1,7 @@
 import { join } from 'node:path';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { closeOrm, getOrm } from './db/orm';
+import { startDigestTimer } from './digest-timer';
 import { env } from './env';
 import { useSmtp } from './mail';
 import { createSignInLimits, type SignInLimits } from './sign-in-limits';
@@ -73,11 +74,14 @@ async function boot(): Promise<Runtime> {
 		);
 		closeS3 = fake.close;
 	}
+	const digestOn = (config.DIGEST_TIMER ?? (config.BENCHSTAMP_MODE === 'production' ? 'on' : 'off')) === 'on';
+	const stopDigest = digestOn ? startDigestTimer(orm, config.DIGEST_HOUR_UTC) : () => {};
 	runtime = {
 		orm,
 		limits: createSignInLimits(orm),
 		mailDir,
 		stop: async () => {
+			stopDigest();
 			await closeSmtp();
 			closeObjectStore();
 			await closeS3();

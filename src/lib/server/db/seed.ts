@@ -4,6 +4,8 @@ import { User, type Role } from './entities';
 import { hashSecret } from '../passwords';
 import { seedDemoProcedures } from '../procedures-seed';
 import { seedRegisters } from '../registers-seed';
+import { seedHistory } from '../history-seed';
+import { seedQualityDemo } from '../quality-seed';
 
 /** The invented demo shop's people. Demo/dev only: a production start never runs this. */
 export const DEMO_PASSWORD = 'bench-demo';
@@ -37,5 +39,9 @@ export async function seedDemo(em: EntityManager): Promise<{ created: number }> 
 	await em.flush();
 	await seedDemoProcedures(em);
 	await seedRegisters(em);
+	// Eight weeks of signed history for search, lot trace, suspect tool and trends (Q2, issue 8).
+	await seedHistory(em);
+	// A run awaiting review with an open finding on an out-of-tolerance bore (Q1, issue 8).
+	await seedQualityDemo(em);
 	return { created };
 }

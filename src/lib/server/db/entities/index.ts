@@ -1,5 +1,8 @@
 import { AdminLog } from './admin-log.entity';
 import { Calibration } from './calibration.entity';
+import { CustomerRecordLink } from './customer-record-link.entity';
+import { Device } from './device.entity';
+import { HeldRecord, HeldRecordResolution } from './held-record.entity';
 import { Job } from './job.entity';
 import { LedgerAnchor } from './ledger-anchor.entity';
 import { LedgerRecord } from './ledger-record.entity';
@@ -49,6 +52,12 @@ export type { IPinLock } from './pin-lock.entity';
 export { LedgerAnchor };
 export { ANCHOR_PLACES } from './ledger-anchor.entity';
 export type { ILedgerAnchor, AnchorPlace } from './ledger-anchor.entity';
+export { CustomerRecordLink };
+export type { ICustomerRecordLink } from './customer-record-link.entity';
+export { Device, HeldRecord, HeldRecordResolution };
+export { HOLD_REASONS, HOLD_OUTCOMES } from './held-record.entity';
+export type { IDevice } from './device.entity';
+export type { IHeldRecord, IHeldRecordResolution, HoldReason, HoldOutcome } from './held-record.entity';
 
 /** Explicit list: MikroORM never scans folders here. */
 export const entities = [
@@ -72,5 +81,9 @@ export const entities = [
 	Run,
 	LedgerRecord,
 	PinLock,
-	LedgerAnchor
+	LedgerAnchor,
+	CustomerRecordLink,
+	Device,
+	HeldRecord,
+	HeldRecordResolution
 ];
