@@ -182,7 +182,7 @@ export const MATRIX: MatrixRow[] = [
 	// re-renders and its load answers 404); an empty form elsewhere is a 400 (allowed).
 	...registerRows(),
 	// Runs and the ledger (issue 6). Empty body → 400 for the roles allowed; `[id]` is a person's id, so no such run.
-	{ route: '/api/runs', call: 'POST', expect: api({ lead: 'allowed', admin: 'allowed' }) },
+	{ route: '/api/runs', call: 'POST', expect: api({ technician: 'allowed', lead: 'allowed', admin: 'allowed' }) },
 	// R2: the run list (technicians their own runs), and a lead's PIN unlock from the runner (empty body → 400).
 	{ route: '/api/runs', call: 'GET', expect: api({ technician: 'ok', lead: 'ok', quality: 'ok', admin: 'ok' }) },
 	{
@@ -202,8 +202,12 @@ export const MATRIX: MatrixRow[] = [
 	// A lead's decision about a newer version (issue 4): only leads and admins, who then find no such run.
 	{ route: '/runs/[id]', call: 'POST ?/continueOn', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) },
 	{ route: '/runs/[id]', call: 'POST ?/move', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) },
-	// Starting a run from the job page: leads and admins; the made-up job id makes the reloaded page 404.
-	{ route: '/jobs/[id]', call: 'POST ?/startRun', expect: signedIn({ lead: 'notfound', admin: 'notfound' }) }
+	// Starting a run from the job page: technicians (for themselves), leads and admins; the made-up job id → 404.
+	{
+		route: '/jobs/[id]',
+		call: 'POST ?/startRun',
+		expect: signedIn({ technician: 'notfound', lead: 'notfound', admin: 'notfound' })
+	}
 ];
 
 function registerRows(): MatrixRow[] {

@@ -53,6 +53,17 @@ test('the runner shows each refusal in words: past-due tool, wrench below 20 %, 
 	browser
 }) => {
 	test.setTimeout(120_000);
+	// A newcomer of our own who holds the family but not the adaptation (the demo tech2 may have been trained in it
+	// by the registers test): made before the runner opens, so the signer list has them.
+	const newcomer = await makePerson(['technician'], '246813');
+	const [{ name: newcomerName }] = await ownerQuery<{ name: string }>(`select name from app_user where id = $1`, [
+		newcomer.id
+	]);
+	await ownerQuery(
+		`insert into qualification (id, user_id, family, family_key, trained_by, trained_on, notes, recorded_at)
+		 values (gen_random_uuid(), $1, $2, $3, 'E2E trainer', current_date - 30, '', now())`,
+		[newcomer.id, FAMILY, FAMILY.toLowerCase()]
+	);
 	const runId = await publishAndStart(browser, source());
 	// A caliper of our own, calibrated and in date when the page opens.
 	const tag = `CL-E${Date.now().toString(36).slice(-5).toUpperCase()}`;
@@ -100,13 +111,13 @@ test('the runner shows each refusal in words: past-due tool, wrench below 20 %, 
 	await expect(answers).toContainText(`Step 2 sign-off by ${TECH}: Tool TW-014 cannot tighten small-screw: ${why}`);
 	await page.getByRole('region', { name: 'Sign step 2' }).getByRole('button', { name: 'Cancel' }).click();
 
-	// 3. Wren Okafor (tech2, demo PIN 555555) holds KTX-7 but not "transmission control adaptation".
+	// 3. The newcomer holds KTX-7 but not "transmission control adaptation".
 	await page.getByRole('button', { name: /^Step 3:/ }).click();
 	await page.getByRole('region', { name: 'Checkpoint adapted' }).getByRole('button', { name: 'Done' }).click();
 	await page.getByRole('button', { name: 'Sign this step' }).click();
-	await signAs(page.getByRole('region', { name: 'Sign step 3' }), 'Wren Okafor', '555555');
+	await signAs(page.getByRole('region', { name: 'Sign step 3' }), newcomerName, '246813');
 	await expect(answers).toContainText(
-		'Step 3 sign-off by Wren Okafor: Step 3 needs the transmission control adaptation qualification, which Wren Okafor does not hold.'
+		`Step 3 sign-off by ${newcomerName}: Step 3 needs the transmission control adaptation qualification, which ${newcomerName} does not hold.`
 	);
 	const stored = await ownerQuery(`select 1 from ledger_record where run_id = $1`, [runId]);
 	expect(stored).toEqual([]);

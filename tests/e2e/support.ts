@@ -64,7 +64,8 @@ export async function makePerson(
 		c.query(
 			`insert into app_user (id, email, name, roles, password_hash, pin_hash, active, session_version, created_at, updated_at)
 			 values ($1, $2, $3, $4, $5, $5, true, 1, now(), now())`,
-			[id, email, `E2E Person ${made}`, roles, hash]
+			// Unique across spec files (each has its own counter), so a name picks one person in any list.
+			[id, email, `E2E Person ${made}-${id.slice(0, 4)}`, roles, hash]
 		)
 	);
 	return { id, email, password };

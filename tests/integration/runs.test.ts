@@ -274,7 +274,22 @@ describe('runs and the submit route', () => {
 			status: 409,
 			message: 'Version 1 is retired: start the run on a current version.'
 		});
-		expect(await startRun(orm.em.fork(), viewer(tech), input)).toMatchObject({ ok: false, status: 403 });
+		expect(await startRun(orm.em.fork(), viewer(tech), input)).toMatchObject({ ok: false, status: 409 });
+	});
+
+	it('lets a technician start a run for themselves only; a lead assigns anyone', async () => {
+		const { lead, tech, version, jobId } = await makeRun(orm.em.fork());
+		const other = await makePerson(orm.em.fork(), { roles: ['technician'], pin: PIN });
+		const input = { jobId, procedureVersionId: version.id, contentHash: version.contentHash, assignedToId: tech.id };
+		const own = await startRun(orm.em.fork(), viewer(tech), input);
+		expect(own.ok).toBe(true);
+		expect(await startRun(orm.em.fork(), viewer(tech), { ...input, assignedToId: other.id })).toMatchObject({
+			ok: false,
+			status: 403,
+			field: 'assignedToId',
+			message: 'A technician starts runs for themselves; a lead assigns runs to others.'
+		});
+		expect((await startRun(orm.em.fork(), viewer(lead), { ...input, assignedToId: other.id })).ok).toBe(true);
 	});
 
 	it('shows a technician only the runs assigned to them or signed in by them', async () => {

@@ -27,7 +27,9 @@ const refuse = (status: 400 | 403 | 404 | 409, message: string, field?: string):
 });
 
 /** Who may start a run (and assign it). */
-export const START_ROLES: RoleName[] = ['lead', 'admin'];
+export const START_ROLES: RoleName[] = ['technician', 'lead', 'admin'];
+/** Roles that may start a run for someone else; a technician starts runs assigned to themselves only. */
+export const ASSIGN_OTHERS_ROLES: RoleName[] = ['lead', 'admin'];
 /** Who may read runs: technicians their own (see {@link maySee}), the others all. */
 export const READ_ROLES: RoleName[] = ['technician', 'lead', 'quality', 'admin'];
 /** Who may submit records (a quality lead verifies critical steps). */
@@ -95,7 +97,9 @@ export async function startRun(
 	input: StartRunInput
 ): Promise<Result<{ id: string }>> {
 	if (!actor.roles.some((r) => START_ROLES.includes(r)))
-		return refuse(403, 'Starting a run is for a lead or an administrator.');
+		return refuse(403, 'Starting a run is for a technician, a lead or an administrator.');
+	if (input.assignedToId !== actor.id && !actor.roles.some((r) => ASSIGN_OTHERS_ROLES.includes(r)))
+		return refuse(403, 'A technician starts runs for themselves; a lead assigns runs to others.', 'assignedToId');
 	const job = await jobs.findById(em, input.jobId);
 	if (!job) return refuse(404, 'No such job.', 'jobId');
 	if (!STARTABLE_JOB_STATES.includes(job.state))

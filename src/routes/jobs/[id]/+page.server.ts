@@ -1,6 +1,7 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
+import type { EntityManager } from '@mikro-orm/postgresql';
 import { z } from 'zod';
 import { REGISTER_ROLES } from '$lib/registers/access';
 import { JOB_TRANSITIONS, RELEASE_ROLES } from '$lib/registers/job-states';
@@ -10,6 +11,7 @@ import * as jobService from '$lib/server/services/jobs.service';
 import { startRunFormSchema } from '$lib/runner/start-run';
 import { runsOfJob, startChoices } from '$lib/server/services/runner.service';
 import * as runService from '$lib/server/services/runs.service';
+import type { SessionUser } from '$lib/server/session-user';
 
 export const load = async (event) => {
 	const user = requireRole(event, ...REGISTER_ROLES.readJobs);
@@ -24,11 +26,20 @@ export const load = async (event) => {
 		canAddPhotos: hasAnyRole(user, REGISTER_ROLES.edit),
 		form: await superValidate(zod4(stateChangeSchema)),
 		runs: await runsOfJob(event.locals.em, user, detail.job.id),
-		start: hasAnyRole(user, runService.START_ROLES)
-			? { ...(await startChoices(event.locals.em)), form: await superValidate(zod4(startRunFormSchema)) }
-			: null
+		start: hasAnyRole(user, runService.START_ROLES) ? await startForm(event.locals.em, user) : null
 	};
 };
+
+/** The start-a-run form; a technician (who is not also a lead) can only assign the run to themselves. */
+async function startForm(em: EntityManager, user: SessionUser) {
+	const choices = await startChoices(em);
+	const self = !hasAnyRole(user, runService.ASSIGN_OTHERS_ROLES);
+	const assignees = self ? choices.assignees.filter((a) => a.id === user.id) : choices.assignees;
+	const form = await superValidate(self ? { assignedToId: user.id } : undefined, zod4(startRunFormSchema), {
+		errors: false
+	});
+	return { ...choices, assignees, form };
+}
 
 export const actions = {
 	startRun: async (event) => {
