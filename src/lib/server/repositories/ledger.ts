@@ -56,3 +56,181 @@ export function insert(tx: EntityManager, run: IRun, record: StoredRecord, colum
 	run.recordCount = record.seq;
 	return row;
 }
+
+/** What a resend check needs of a stored record: no entity hydrated. */
+export interface KnownRecord {
+	id: string;
+	runId: string;
+	seq: number;
+	hash: string;
+	submissionHash: string;
+}
+
+/** The stored records among `ids` (in any run), by id: one query for a whole batch's duplicate check. */
+export async function findKnown(em: EntityManager, ids: readonly string[]): Promise<Map<string, KnownRecord>> {
+	const out = new Map<string, KnownRecord>();
+	if (ids.length === 0) return out;
+	const rows = await em
+		.getConnection()
+		.execute<{ id: string; run_id: string; seq: number; hash: string; submission_hash: string }[]>(
+			`select "id", "run_id", "seq", "hash", "submission_hash" from "ledger_record" where "id" in (${ids.map(() => '?').join(', ')})`,
+			[...ids]
+		);
+	for (const r of rows)
+		out.set(r.id, { id: r.id, runId: r.run_id, seq: r.seq, hash: r.hash, submissionHash: r.submission_hash });
+	return out;
+}
+
+/**
+ * An admin-log entry whose presence stops an append, checked by the INSERT statement itself (so with the snapshot of
+ * that statement, taken after the run's row lock was granted): e.g. a lead's decision that moved the run.
+ */
+export interface UnlessLogged {
+	action: string;
+	subjectType: string;
+	subjectId: string;
+	/** Contained in the entry's detail (`detail @> …`). */
+	detail: Record<string, string>;
+}
+
+/**
+ * The INSERT of an appended record and the advance of its run's head, as one statement in `tx` (no unit-of-work
+ * changeset): the submit route's hot path. Call with the run's row lock held (`runs.lockForAppend`). The in-memory
+ * `run` is NOT touched (so the transaction's closing flush has nothing to write for it): a caller that goes on to
+ * flush other changes sets `run.headHash`/`recordCount` itself. A reused id or seq fails on the primary key /
+ * unique constraints (`UniqueConstraintViolationException`) and nothing is stored. Returns false (nothing stored)
+ * when `unlessLogged` names an entry that exists.
+ */
+export async function insertAndAdvance(
+	tx: EntityManager,
+	run: IRun,
+	record: StoredRecord,
+	c: RecordColumns,
+	opts: { unlessLogged?: UnlessLogged } = {}
+): Promise<boolean> {
+	const q = (n: number) => Array.from({ length: n }, () => '?').join(', ');
+	const u = opts.unlessLogged;
+	const guard = u
+		? ` where not exists (select 1 from "admin_log" where "action" = ? and "subject_type" = ? and "subject_id" = ? and "detail" @> ?::jsonb)`
+		: '';
+	const result = await tx.execute<{ affectedRows: number }>(
+		`with "ins" as (insert into "ledger_record" ("id", "run_id", "seq", "kind", "body", "prev_hash", "hash", ` +
+			`"submission_hash", "signer_id", "signer_role", "device_id", "device_time", "server_time", "engine_version", ` +
+			`"signed_offline") select ${q(4)}, ?::jsonb, ${q(6)}, ?::timestamptz, ?::timestamptz, ?, ?${guard} returning "id") ` +
+			`update "run" set "head_hash" = ?, "record_count" = ?, "updated_at" = ?::timestamptz ` +
+			`where "id" = ? and exists (select 1 from "ins")`,
+		[
+			record.id,
+			record.runId,
+			record.seq,
+			record.kind,
+			JSON.stringify(record.body),
+			record.prevHash,
+			record.hash,
+			c.submissionHash,
+			c.signerId,
+			c.signerRole,
+			c.deviceId,
+			c.deviceTime?.toISOString() ?? null,
+			c.serverTime.toISOString(),
+			c.engineVersion,
+			c.signedOffline,
+			...(u ? [u.action, u.subjectType, u.subjectId, JSON.stringify(u.detail)] : []),
+			record.hash,
+			record.seq,
+			c.serverTime.toISOString(),
+			run.id
+		],
+		'run'
+	);
+	return result.affectedRows === 1;
+}
+
+/** The run's row as the appender last saw it: the fast append goes ahead only if the row is still exactly so. */
+export interface ExpectedHead {
+	headHash: string | null;
+	recordCount: number;
+	state: string;
+	reworkSteps: number[] | null;
+}
+
+const col = (names: string[]) => names.map((n) => `"${n}"`).join(', ');
+const RECORD_COLUMNS = col([
+	'id',
+	'run_id',
+	'seq',
+	'kind',
+	'body',
+	'prev_hash',
+	'hash',
+	'submission_hash',
+	'signer_id',
+	'signer_role',
+	'device_id',
+	'device_time',
+	'server_time',
+	'engine_version',
+	'signed_offline'
+]);
+
+/**
+ * One append in ONE round trip and its own transaction: a two-statement simple query, which PostgreSQL runs as one
+ * implicit transaction (rolled back whole on any error). The first statement takes the run's row lock
+ * (`SELECT … FOR UPDATE`); the second — with its own snapshot, taken once the lock is held — inserts the record and
+ * advances the head only if the run's row is still `expect` (same head, count, state and rework steps: the record's
+ * `prevHash`/`seq` were chained on it) and no `unlessLogged` entry exists. Returns whether it stored the record;
+ * false (or a thrown database error) means nothing was stored and the caller takes the full path. Values are
+ * escaped by the ORM's own formatter, as `execute` does.
+ */
+export async function lockAndAppendIfHead(
+	em: EntityManager,
+	record: StoredRecord,
+	c: RecordColumns,
+	expect: ExpectedHead,
+	unlessLogged: UnlessLogged
+): Promise<boolean> {
+	const f = (sql: string, params: unknown[]) => em.getPlatform().formatQuery(sql, params);
+	const lock = f(`select 1 from "run" where "id" = ? for update`, [record.runId]);
+	const append = f(
+		`with "ins" as (insert into "ledger_record" (${RECORD_COLUMNS}) select ?, ?, ?, ?, ?::jsonb, ?, ?, ?, ?, ?, ?, ` +
+			`?::timestamptz, ?::timestamptz, ?, ? where exists (select 1 from "run" where "id" = ? and "head_hash" is not ` +
+			`distinct from ? and "record_count" = ? and "state" = ? and "rework_steps" is not distinct from ?::jsonb) ` +
+			`and not exists (select 1 from "admin_log" where "action" = ? and "subject_type" = ? and "subject_id" = ? and ` +
+			`"detail" @> ?::jsonb) returning "id") ` +
+			`update "run" set "head_hash" = ?, "record_count" = ?, "updated_at" = ?::timestamptz ` +
+			`where "id" = ? and exists (select 1 from "ins")`,
+		[
+			record.id,
+			record.runId,
+			record.seq,
+			record.kind,
+			JSON.stringify(record.body),
+			record.prevHash,
+			record.hash,
+			c.submissionHash,
+			c.signerId,
+			c.signerRole,
+			c.deviceId,
+			c.deviceTime?.toISOString() ?? null,
+			c.serverTime.toISOString(),
+			c.engineVersion,
+			c.signedOffline,
+			record.runId,
+			expect.headHash,
+			expect.recordCount,
+			expect.state,
+			expect.reworkSteps === null ? null : JSON.stringify(expect.reworkSteps),
+			unlessLogged.action,
+			unlessLogged.subjectType,
+			unlessLogged.subjectId,
+			JSON.stringify(unlessLogged.detail),
+			record.hash,
+			record.seq,
+			c.serverTime.toISOString(),
+			record.runId
+		]
+	);
+	// No bindings: the driver sends one simple Query message, so both statements share one implicit transaction.
+	const results = (await em.getConnection().getKnex().raw(`${lock};\n${append}`)) as { rowCount: number | null }[];
+	return Array.isArray(results) && results.length === 2 && results[1].rowCount === 1;
+}
