@@ -201,6 +201,10 @@ test('issue 8: a new quality lead dispositions the demo finding as rework, the r
 	expect(reply.answers?.[0], JSON.stringify(reply)).toMatchObject({ status: 'refused', reason: RELEASED_REFUSAL });
 	const [after] = await ownerQuery<{ n: string }>(`select count(*) as n from ledger_record where run_id = $1`, [runId]);
 	expect(after.n).toBe(before.n);
+	// On the bench the released run reads as closed: no control records anything any more.
+	await bench.goto(`/runs/${reworkId}`);
+	await expect(bench.getByText('Released', { exact: true })).toBeVisible();
+	await expect(bench.getByRole('button', { name: /Sign this step|Record a finding|Verify this step/ })).toHaveCount(0);
 	await bench.context().close();
 	await page.context().close();
 });

@@ -28,7 +28,7 @@ export interface OfflineGrantClaims {
 export interface SigningAccount {
 	active: boolean;
 	sessionVersion: number;
-	pinChangedAt: Date | null;
+	pinChangedAt?: Date | null;
 }
 
 /**

@@ -46,6 +46,8 @@ export const submissionSchema = recordDraftSchema.extend({
 		.optional(),
 	signedAt: z.int().min(0).optional(),
 	signedOffline: z.boolean().optional(),
+	/** A record signed offline: the server-sealed permit the tablet was given (`offline-signing.ts`). */
+	offlineGrant: z.string().max(1024).optional(),
 	signature: z.object({ deviceId: z.string().max(64), value: z.string().max(2048) }).optional()
 });
 export type Submission = z.infer<typeof submissionSchema>;
