@@ -342,6 +342,23 @@ function toolsOf(b: Body): RecordTool[] {
 	});
 }
 
+/** The words a record carries, whatever its kind calls them: a finding's text, a handover note, an N/A reason… */
+function recordText(kind: string, b: Body): string | null {
+	const name = (v: unknown) => str((v as { name?: unknown } | null)?.name);
+	switch (kind) {
+		case 'handover': {
+			const to = name(b.to);
+			return `Handover${to ? ` to ${to}` : ''}: ${str(b.note) ?? ''}`;
+		}
+		case 'na_approval':
+			return `Not applicable — ${str(b.reason) ?? 'no reason'}${str(b.note) ? `: ${str(b.note)}` : ''}`;
+		case 'disposition':
+			return `Disposition: ${str(b.decision) ?? '?'}${str(b.justification) ? ` — ${str(b.justification)}` : ''}`;
+		default:
+			return str(b.text);
+	}
+}
+
 /** Every record of the run in chain order, as the run record page and its print show it; null when no such run. */
 export async function runRecord(em: EntityManager, runId: string): Promise<RunRecordView | null> {
 	const run = await runs.findById(em, runId);
@@ -379,7 +396,7 @@ export async function runRecord(em: EntityManager, runId: string): Promise<RunRe
 				serverTime: r.serverTime.toISOString(),
 				signedOffline: r.signedOffline,
 				hash: r.hash,
-				text: str(b.text),
+				text: recordText(r.kind, b),
 				entries: entriesOf(b),
 				tools: toolsOf(b),
 				supersedes: r.kind === 'supersession' ? { id: str(b.supersedes) ?? '', reason: str(b.reason) ?? '' } : null
