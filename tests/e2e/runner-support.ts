@@ -47,7 +47,7 @@ export async function typePin(panel: Locator, pin: string) {
 }
 
 /** Through the API: the lead writes and submits the procedure, the quality lead approves, the lead starts a run. */
-export async function publishAndStart(browser: Browser, source: string, assignee = DEMO.technician.email) {
+export async function publishAndStart(browser: Browser, source: string, assignee: string = DEMO.technician.email) {
 	const lead = await tablet(browser, DEMO.lead.email);
 	const created = await lead.request.post('/api/procedures', { data: { source } });
 	expect(created.status(), await created.text()).toBe(201);
