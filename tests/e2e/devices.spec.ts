@@ -47,6 +47,8 @@ test('a lead enrols a tablet; its records carry a verified device signature; onc
 	const context = await browser.newContext({ viewport: PORTRAIT });
 	const page = await context.newPage();
 	await signIn(page, DEMO.lead.email);
+	// Wait for the sign-in to land: a goto while its POST is in flight would race it.
+	await expect(page).toHaveURL(DEMO.lead.home);
 	await page.goto('/bench/devices');
 	await page.getByLabel('Tablet name').fill(label);
 	await page.getByRole('button', { name: 'Enrol this tablet' }).click();
