@@ -37,7 +37,7 @@ export type JsonValue = string | number | boolean | null | JsonValue[] | { [key:
 export type StoreKey = (string | number)[];
 
 /** The kinds of object in the store, the first element of every key. */
-export type StoreKind = 'meta' | 'run' | 'entry' | 'outbox' | 'refused' | 'photo' | 'signer';
+export type StoreKind = 'meta' | 'run' | 'entry' | 'outbox' | 'refused' | 'photo' | 'signer' | 'kept';
 
 /** Key builders: the one place the key layout is written down. */
 export const KEYS = {
@@ -53,7 +53,9 @@ export const KEYS = {
 	refused: (id: string): StoreKey => ['refused', id],
 	photo: (seq: number): StoreKey => ['photo', seq],
 	/** {@link import('./offline-pin').OfflineSigner}: a signer's PIN verifier and server grant on this tablet. */
-	signer: (userId: string): StoreKey => ['signer', userId]
+	signer: (userId: string): StoreKey => ['signer', userId],
+	/** A photo taken on this tablet that no record names yet (see offline-photo.ts); moves to `photo` on enqueue. */
+	kept: (photoId: string): StoreKey => ['kept', photoId]
 } as const;
 
 /** One image of a pinned procedure version; `blob` is absent until it has been fetched onto the tablet. */
