@@ -6,6 +6,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { Procedure, Step } from '../../procedure/model';
 import type { IRun } from '../db/entities';
+import { pendingForRuns } from '../repositories/tablet-photos';
 
 /** The sentence a record sent to a released run is refused with (the offline queue holds such records). */
 export const RELEASED_REFUSAL =
@@ -37,4 +38,14 @@ export async function lateRecordRefusal(
 			return `This rework run covers step${steps.length === 1 ? '' : 's'} ${stepList(steps)} only: step ${index + 1} is not part of the rework.`;
 	}
 	return null;
+}
+
+/**
+ * Photos offline (issue 7): a record may name a photo still on its tablet (`tabletPhotos`). Until every such photo
+ * is stored, the run is not released — the released record would otherwise point at a picture nobody has seen.
+ */
+export async function photosOnTheirWayReason(em: EntityManager, runIds: readonly string[]): Promise<string | null> {
+	const missing = new Set((await pendingForRuns(em, runIds)).map((p) => p.photoId)).size;
+	if (!missing) return null;
+	return `${missing} photo${missing === 1 ? ' is' : 's are'} still on the tablet that took ${missing === 1 ? 'it' : 'them'}: release once ${missing === 1 ? 'it has' : 'they have'} been synced.`;
 }

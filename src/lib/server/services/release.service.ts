@@ -20,6 +20,7 @@ import * as users from '../repositories/users';
 import { DESK_DEVICE, type Outcome } from './dispositions.service';
 import { changeState } from './jobs.service';
 import { appendDeskRecord } from './quality-records';
+import { photosOnTheirWayReason } from './release-guard';
 import { movedTo } from './run-versions.service';
 import type { Viewer } from './runs.service';
 import { checkPin } from './submit.service';
@@ -99,6 +100,10 @@ async function reasonsNotReady(em: EntityManager, all: Member[]): Promise<string
 		if (held)
 			reasons.push(`${held} record${held === 1 ? ' is' : 's are'} held for review on this run: resolve them first.`);
 	}
+	// Issue 7: photos a record declared while they were still on the tablet.
+	const runIds = all.map((m) => m.run.id);
+	const photos = await photosOnTheirWayReason(em, runIds);
+	if (photos) reasons.push(photos);
 
 	const model = (root.run.procedureVersion as unknown as IProcedureVersion).model as unknown as Procedure;
 	const latest = new Map<number, ILedgerRecord>();
