@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { completionRecords, currentRecords, stepState, type StepRecord } from './step-state';
+import { completionRecords, conflictsOf, currentRecords, stepState, type StepRecord } from './step-state';
 
 // Shop rules of this product (common practice, no published source): a correction voids what it names; a
 // verification counts only for the sign-off it names while that sign-off is current; an N/A step counts as done.
@@ -41,5 +41,44 @@ describe('step state from a chain', () => {
 		const undo = r('c2', 'supersession', { stepIndex: 1, supersedes: 'n1', reason: 'does apply' });
 		expect(completionRecords([na, undo])).toEqual([]);
 		expect(stepState([na]).notApplicable.get(1)).toBe('n1');
+	});
+
+	describe('signed on two tablets (conflictsWith, written by the server)', () => {
+		// Shop rule of this product (common practice, no published source): the later sign-off supersedes the
+		// earlier one, both stay readable, and a verification of the earlier one no longer counts.
+		const a = r('a', 'signoff', { stepIndex: 0 });
+		const va = r('va', 'verification', { stepIndex: 0, signoffId: 'a' });
+		const b = r('b', 'signoff', { stepIndex: 0, conflictsWith: 'a' });
+
+		it('makes the later sign-off current and voids the earlier one and its verification', () => {
+			const st = stepState([a, va, b]);
+			expect([...st.signoffOf]).toEqual([[0, 'b']]);
+			expect([...st.verified]).toEqual([]);
+			expect([...st.conflicts]).toEqual([['a', { id: 'b', current: true }]]);
+			expect(currentRecords([a, va, b]).map((x) => x.id)).toEqual(['b']);
+			expect(completionRecords([a, va, b])).toEqual([{ kind: 'signoff', stepIndex: 0 }]);
+		});
+
+		it('brings the earlier sign-off back when the later one is corrected', () => {
+			const undo = r('u', 'supersession', { stepIndex: 0, supersedes: 'b', reason: 'wrong unit' });
+			const st = stepState([a, va, b, undo]);
+			expect(st.conflicts.get('a')).toEqual({ id: 'b', current: false });
+			expect([...st.signoffOf]).toEqual([[0, 'a']]);
+			expect([...st.verified]).toEqual([0]);
+		});
+
+		it('follows a clash of three: only the latest counts; correcting it revives the middle one only', () => {
+			const c = r('c', 'signoff', { stepIndex: 0, conflictsWith: 'b' });
+			expect(currentRecords([a, b, c]).map((x) => x.id)).toEqual(['c']);
+			const undo = r('u', 'supersession', { stepIndex: 0, supersedes: 'c', reason: 'wrong unit' });
+			expect(currentRecords([a, b, c, undo]).map((x) => x.id)).toEqual(['b', 'u']);
+			expect(conflictsOf([a, b, c, undo]).get('b')).toEqual({ id: 'c', current: false });
+		});
+
+		it('ignores conflictsWith on anything but a sign-off', () => {
+			const odd = r('f', 'finding', { stepIndex: 0, conflictsWith: 'a' });
+			expect(conflictsOf([a, odd]).size).toBe(0);
+			expect(stepState([a, odd]).signoffOf.get(0)).toBe('a');
+		});
 	});
 });

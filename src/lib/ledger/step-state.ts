@@ -7,6 +7,9 @@
  * - A verification counts only while the sign-off it names is current: correcting a verified sign-off means the
  *   step is signed and verified again.
  * - A current `na_approval` makes its step count as done.
+ * - Signed on two tablets (offline issue, `run-conflicts.ts`): a sign-off whose server-written `body.conflictsWith`
+ *   names an earlier sign-off of the same step supersedes it; both stay in the chain and both are shown. The earlier
+ *   one stops counting only while the later one counts (a correction of the later one brings the earlier back).
  */
 
 /** The fields of a record this module reads (a stored row, a view of one, or a record being appended). */
@@ -50,12 +53,35 @@ export function supersededBy(records: readonly StepRecord[]): Map<string, { id: 
 	return out;
 }
 
+/** A sign-off that lost a clash: the later sign-off of the same step (signed on another tablet or by someone else). */
+export interface Conflict {
+	/** The later sign-off, which names this one in `body.conflictsWith`. */
+	id: string;
+	/** False when the later sign-off was itself corrected: the earlier one then counts again. */
+	current: boolean;
+}
+
 /**
- * The records that still count: superseded ones dropped, verifications of a superseded (or missing) sign-off
- * dropped. Order is kept.
+ * Earlier sign-off id → the later sign-off that names it in `conflictsWith`. A later sign-off that was corrected
+ * (superseded by a `supersession`) no longer voids the one it named; one that lost a still later clash still does.
+ */
+export function conflictsOf(records: readonly StepRecord[]): Map<string, Conflict> {
+	const corrected = supersededBy(records);
+	const out = new Map<string, Conflict>();
+	for (const r of records) {
+		const target = r.kind === 'signoff' ? field(r, 'conflictsWith') : undefined;
+		if (typeof target === 'string' && !out.has(target)) out.set(target, { id: r.id, current: !corrected.has(r.id) });
+	}
+	return out;
+}
+
+/**
+ * The records that still count: superseded ones dropped (by a correction, or by a later sign-off on another tablet),
+ * verifications of a superseded (or missing) sign-off dropped. Order is kept.
  */
 export function currentRecords<T extends StepRecord>(records: readonly T[]): T[] {
-	const voided = supersededBy(records);
+	const voided = new Set(supersededBy(records).keys());
+	for (const [id, c] of conflictsOf(records)) if (c.current) voided.add(id);
 	const live = records.filter((r) => !voided.has(r.id));
 	const signoffs = new Set(live.filter((r) => r.kind === 'signoff').map((r) => r.id));
 	return live.filter((r) => r.kind !== 'verification' || signoffs.has(String(field(r, 'signoffId'))));
@@ -70,6 +96,8 @@ export interface StepState {
 	notApplicable: Map<number, string>;
 	/** Superseded record id → the supersession. */
 	superseded: Map<string, { id: string; reason: string }>;
+	/** Sign-off id → the later sign-off of the same step that clashed with it (see {@link conflictsOf}). */
+	conflicts: Map<string, Conflict>;
 }
 
 /** Each step's sign-off, verification and N/A as the chain stands now. */
@@ -86,7 +114,7 @@ export function stepState(records: readonly StepRecord[]): StepState {
 	for (const r of current)
 		if (r.kind === 'verification' && signoffOf.get(stepIndexOf(r)) === field(r, 'signoffId'))
 			verified.add(stepIndexOf(r));
-	return { signoffOf, verified, notApplicable, superseded: supersededBy(records) };
+	return { signoffOf, verified, notApplicable, superseded: supersededBy(records), conflicts: conflictsOf(records) };
 }
 
 /**

@@ -1,5 +1,10 @@
 import { z } from 'zod';
 
+/** Read on its own too (run-conflicts.ts): seeds and scripts submit records without the app's whole settings. */
+export const conflictPolicySchema = z
+	.enum(['supersede', 'hold'], { error: 'must be supersede or hold' })
+	.default('supersede');
+
 /**
  * Every setting the server reads, validated once at start-up. Read from process.env so the same module
  * serves the app (adapter-node), the scripts and the tests; `$env` is not available outside Vite.
@@ -33,7 +38,9 @@ const schema = z.object({
 	S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
 	S3_PATH_STYLE: z.enum(['true', 'false']).default('true'),
 	FAKE_S3_PORT: z.coerce.number().int().min(0).max(65535).default(0),
-	FAKE_S3_DIR: z.string().optional()
+	FAKE_S3_DIR: z.string().optional(),
+	/** The same step signed on two tablets: the later sign-off supersedes (default) or is held (run-conflicts.ts). */
+	CONFLICT_POLICY: conflictPolicySchema
 });
 
 export type Env = z.infer<typeof schema>;

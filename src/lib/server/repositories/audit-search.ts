@@ -27,6 +27,8 @@ export interface RunFilter {
 	from?: string;
 	to?: string;
 	findings?: 'yes' | 'no';
+	/** Offline issue: only runs where a step was signed on two tablets (a sign-off the server marked `conflictsWith`). */
+	conflicts?: boolean;
 	/** Part of a unit serial, compared as the job's serial key (upper case, no spaces/dashes/dots). */
 	serialKey?: string;
 	/** A part lot or serial number recorded in a part or fluid entry. */
@@ -124,6 +126,10 @@ export async function searchRuns(em: EntityManager, f: RunFilter): Promise<{ row
 		params.push(f.version);
 	}
 	if (f.findings) where.push(f.findings === 'yes' ? 's.findings > 0' : 's.findings = 0');
+	if (f.conflicts)
+		where.push(
+			`exists (select 1 from ledger_record l3 where l3.run_id = r.id and l3.kind = 'signoff' and l3.body->>'conflictsWith' is not null)`
+		);
 	if (f.serialKey) {
 		where.push(`j.serial_key like ? escape '\\'`);
 		params.push(`%${escapeLike(f.serialKey)}%`);

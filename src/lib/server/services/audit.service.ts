@@ -273,6 +273,9 @@ export interface RunRecordRow {
 	tools: RecordTool[];
 	/** R2: a correction names the record it supersedes, and why. */
 	supersedes?: { id: string; reason: string } | null;
+	/** Offline issue: the tablet it was signed on, and the sign-off of the same step on another tablet it superseded. */
+	deviceId?: string | null;
+	conflictsWith?: string | null;
 }
 
 export interface RunRecordView {
@@ -399,7 +402,9 @@ export async function runRecord(em: EntityManager, runId: string): Promise<RunRe
 				text: recordText(r.kind, b),
 				entries: entriesOf(b),
 				tools: toolsOf(b),
-				supersedes: r.kind === 'supersession' ? { id: str(b.supersedes) ?? '', reason: str(b.reason) ?? '' } : null
+				supersedes: r.kind === 'supersession' ? { id: str(b.supersedes) ?? '', reason: str(b.reason) ?? '' } : null,
+				deviceId: r.deviceId ?? null,
+				conflictsWith: r.kind === 'signoff' ? (str(b.conflictsWith) ?? null) : null
 			};
 		})
 	};

@@ -13,7 +13,7 @@ export const HOLD_REASON_TEXT: Record<HoldReason, string> = {
 	bad_signature: 'Device signature missing or wrong',
 	unknown_device: 'Tablet not enrolled here',
 	after_release: 'Arrived after release',
-	other: 'Other'
+	other: 'Refused on sync'
 };
 
 export interface HeldView {

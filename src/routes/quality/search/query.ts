@@ -6,6 +6,7 @@ export const FILTER_KEYS = [
 	'from',
 	'to',
 	'findings',
+	'conflicts',
 	'serial',
 	'lot',
 	'state'
