@@ -2,8 +2,10 @@
  * Benchmark runner: `npm run bench`. Imports each bench module and runs its cases in this one
  * process, printing the median of several timed runs. Not a test: it reports, it does not fail.
  * To add a bench, write `tests/bench/<name>.bench.ts` exporting `title` and `main(medianMs)`,
- * and list it in `modules` below.
+ * and list it in `modules` below. Benches that need PostgreSQL share one cluster (`bench-db.ts`).
  */
+import { closeBenchDb } from './bench-db';
+import * as offline from './offline.bench';
 import * as procedure from './procedure.bench';
 import * as runner from './runner.bench';
 
@@ -25,9 +27,13 @@ export async function medianMs(fn: () => unknown, runs = 7, warmup = 2): Promise
 	return times[Math.floor(times.length / 2)];
 }
 
-const modules: BenchModule[] = [procedure, runner];
+const modules: BenchModule[] = [procedure, runner, offline];
 
-for (const m of modules) {
-	console.log(`\n== ${m.title}`);
-	await m.main(medianMs);
+try {
+	for (const m of modules) {
+		console.log(`\n== ${m.title}`);
+		await m.main(medianMs);
+	}
+} finally {
+	await closeBenchDb(); // the PostgreSQL cluster the database benches share
 }

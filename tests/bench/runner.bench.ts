@@ -9,15 +9,12 @@
  * throwaway cluster in a temp directory, stopped and deleted at the end). `BENCH_RECORDS` (default 10000).
  */
 import { hash } from '@node-rs/argon2';
-import { MikroORM } from '@mikro-orm/postgresql';
 import { existsSync } from 'node:fs';
-import { chmod, mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
+import { readdir, readFile } from 'node:fs/promises';
 import { join, relative } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { createRequire } from 'node:module';
-import { ormOptions } from '../../mikro-orm.config';
-import { connectClient, freePort, startCluster, stopCluster, type PgQueryResult } from '../../scripts/lib/postgres';
+import { connectClient, type PgQueryResult } from '../../scripts/lib/postgres';
 import { uuidv7 } from '../../src/lib/ledger/uuid-v7';
 import { User } from '../../src/lib/server/db/entities';
 import { hashSecret, verifySecret } from '../../src/lib/server/passwords';
@@ -25,15 +22,13 @@ import { startRun } from '../../src/lib/server/services/runs.service';
 import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
 import { submitRecords } from '../../src/lib/server/services/submit.service';
 import { boreAttempt, makeRun, PIN } from '../factories/runs';
-import { migrateDb } from '../integration/support/migrate';
+import { benchDb, POOL, type BenchDb } from './bench-db';
 
 export const title = 'bench runner: page JavaScript, submit throughput, PIN verifications';
 
 const ROOT = join(import.meta.dirname, '..', '..');
 const JS_GOAL_KB = 120;
 const THROUGHPUT_GOAL = 0.3;
-/** Connections on both sides of the throughput ratio, and runs submitted to at once (one chain each). */
-const POOL = 4;
 const BATCH = 200;
 
 /** The `pg` pool, typed as little as this bench uses (no @types/pg in the project). */
@@ -99,104 +94,98 @@ async function pageJs(kitDir: string) {
 	return { runner: await total(runner), bare };
 }
 
-async function submitThroughput(records: number) {
-	const baseDir = await mkdtemp(join(tmpdir(), 'benchstamp-bench-'));
-	await chmod(baseDir, 0o755); // the postgres OS user must reach it when run as root
-	try {
-		const urls = await startCluster({ baseDir, port: await freePort(), database: 'benchstamp', ephemeral: true });
-		await migrateDb(urls.ownerUrl, urls.appUrl);
-		const orm = await MikroORM.init({ ...ormOptions(urls.appUrl), pool: { min: 1, max: POOL } });
-		try {
-			const em = orm.em.fork();
-			const base = await makeRun(em);
-			// Cheap argon2 parameters for this signer only: the KDF is measured on its own below.
-			await em.nativeUpdate(
-				User,
-				{ id: base.tech.id },
-				{ pinHash: await hash(PIN, { memoryCost: 8, timeCost: 1, parallelism: 1 }) }
-			);
-			const viewer = { id: base.lead.id, name: base.lead.name, roles: base.lead.roles };
-			const runIds = [base.runId];
-			while (runIds.length < POOL) {
-				const r = await startRun(orm.em.fork(), viewer, {
-					jobId: base.jobId,
-					procedureVersionId: base.version.id,
-					contentHash: base.version.contentHash,
-					assignedToId: base.tech.id
-				});
-				if (!r.ok) throw new Error(r.message);
-				runIds.push(r.value.id);
-			}
-			const per = Math.ceil(records / POOL);
-			const signer = { id: base.tech.id, role: 'technician' };
-			const t0 = performance.now();
-			await Promise.all(
-				runIds.map(async (runId) => {
-					for (let done = 0; done < per; done += BATCH) {
-						const batch = Array.from({ length: Math.min(BATCH, per - done) }, () => ({
-							id: uuidv7(),
-							runId,
-							kind: 'attempt',
-							body: boreAttempt('22.010'),
-							signer
-						}));
-						const r = await submitRecords(
-							orm.em.fork(),
-							{ id: base.tech.id, name: base.tech.name, roles: base.tech.roles },
-							runId,
-							submitBatchSchema.parse({ records: batch, pins: { [base.tech.id]: PIN } })
-						);
-						if (!r.ok) throw new Error(r.message);
-						const bad = r.value.answers.find((a) => a.status !== 'accepted');
-						if (bad) throw new Error(`${bad.status}: ${bad.reason}`);
-					}
-				})
-			);
-			const submitMs = performance.now() - t0;
-			const stored = per * POOL;
-
-			// The same rows, one INSERT each (autocommit: its own transaction), into a copy of the table.
-			const owner = await connectClient(urls.ownerUrl);
-			await owner.query(`create table bench_ledger (like ledger_record including defaults including indexes)`);
-			await owner.query(`grant insert, select on bench_ledger to benchstamp_app`);
-			const rows = (await owner.query(`select * from ledger_record order by run_id, seq`)).rows as Record<
-				string,
-				unknown
-			>[];
-			await owner.end();
-			const cols = Object.keys(rows[0]);
-			const sql = `insert into bench_ledger (${cols.map((c) => `"${c}"`).join(', ')}) values (${cols.map((_, i) => `$${i + 1}`).join(', ')})`;
-			const pool = new Pool({ connectionString: urls.appUrl, max: POOL });
-			const queues = Array.from({ length: POOL }, (_, i) => rows.filter((_, j) => j % POOL === i));
-			const t1 = performance.now();
-			await Promise.all(
-				queues.map(async (q) => {
-					for (const row of q)
-						await pool.query(
-							sql,
-							cols.map((c) =>
-								row[c] !== null && typeof row[c] === 'object' && !(row[c] instanceof Date)
-									? JSON.stringify(row[c])
-									: row[c]
-							)
-						);
-				})
-			);
-			const insertMs = performance.now() - t1;
-			await pool.end();
-			return {
-				stored,
-				submitPerS: stored / (submitMs / 1000),
-				inserted: rows.length,
-				insertPerS: rows.length / (insertMs / 1000)
-			};
-		} finally {
-			await orm.close(true);
-		}
-	} finally {
-		await stopCluster(baseDir).catch(() => undefined);
-		await rm(baseDir, { recursive: true, force: true });
+/**
+ * Records per second through `submitRecords` (4 runs at once, batches of 200) and plain INSERTs of the same rows.
+ * `onPhase` is called as each timed phase starts (the profiling script hooks it).
+ */
+export async function submitThroughput(
+	{ orm, appUrl, ownerUrl }: BenchDb,
+	records: number,
+	onPhase?: (phase: 'submit' | 'insert') => Promise<void>
+) {
+	const em = orm.em.fork();
+	const base = await makeRun(em);
+	// Cheap argon2 parameters for this signer only: the KDF is measured on its own below.
+	await em.nativeUpdate(
+		User,
+		{ id: base.tech.id },
+		{ pinHash: await hash(PIN, { memoryCost: 8, timeCost: 1, parallelism: 1 }) }
+	);
+	const viewer = { id: base.lead.id, name: base.lead.name, roles: base.lead.roles };
+	const runIds = [base.runId];
+	while (runIds.length < POOL) {
+		const r = await startRun(orm.em.fork(), viewer, {
+			jobId: base.jobId,
+			procedureVersionId: base.version.id,
+			contentHash: base.version.contentHash,
+			assignedToId: base.tech.id
+		});
+		if (!r.ok) throw new Error(r.message);
+		runIds.push(r.value.id);
 	}
+	const per = Math.ceil(records / POOL);
+	const signer = { id: base.tech.id, role: 'technician' };
+	await onPhase?.('submit');
+	const t0 = performance.now();
+	await Promise.all(
+		runIds.map(async (runId) => {
+			for (let done = 0; done < per; done += BATCH) {
+				const batch = Array.from({ length: Math.min(BATCH, per - done) }, () => ({
+					id: uuidv7(),
+					runId,
+					kind: 'attempt',
+					body: boreAttempt('22.010'),
+					signer
+				}));
+				const r = await submitRecords(
+					orm.em.fork(),
+					{ id: base.tech.id, name: base.tech.name, roles: base.tech.roles },
+					runId,
+					submitBatchSchema.parse({ records: batch, pins: { [base.tech.id]: PIN } })
+				);
+				if (!r.ok) throw new Error(r.message);
+				const bad = r.value.answers.find((a) => a.status !== 'accepted');
+				if (bad) throw new Error(`${bad.status}: ${bad.reason}`);
+			}
+		})
+	);
+	const submitMs = performance.now() - t0;
+	await onPhase?.('insert');
+	const stored = per * POOL;
+
+	// The same rows, one INSERT each (autocommit: its own transaction), into a copy of the table.
+	const owner = await connectClient(ownerUrl);
+	await owner.query(`create table bench_ledger (like ledger_record including defaults including indexes)`);
+	await owner.query(`grant insert, select on bench_ledger to benchstamp_app`);
+	const rows = (await owner.query(`select * from ledger_record order by run_id, seq`)).rows as Record<
+		string,
+		unknown
+	>[];
+	await owner.end();
+	const cols = Object.keys(rows[0]);
+	const sql = `insert into bench_ledger (${cols.map((c) => `"${c}"`).join(', ')}) values (${cols.map((_, i) => `$${i + 1}`).join(', ')})`;
+	const pool = new Pool({ connectionString: appUrl, max: POOL });
+	const queues = Array.from({ length: POOL }, (_, i) => rows.filter((_, j) => j % POOL === i));
+	const t1 = performance.now();
+	await Promise.all(
+		queues.map(async (q) => {
+			for (const row of q)
+				await pool.query(
+					sql,
+					cols.map((c) =>
+						row[c] !== null && typeof row[c] === 'object' && !(row[c] instanceof Date) ? JSON.stringify(row[c]) : row[c]
+					)
+				);
+		})
+	);
+	const insertMs = performance.now() - t1;
+	await pool.end();
+	return {
+		stored,
+		submitPerS: stored / (submitMs / 1000),
+		inserted: rows.length,
+		insertPerS: rows.length / (insertMs / 1000)
+	};
 }
 
 async function pinRate(n = 10) {
@@ -219,7 +208,7 @@ export async function main() {
 	} else console.log(`runner page JS: no build in ${kitDir} (run a vite build first); skipped`);
 
 	const records = Number(process.env.BENCH_RECORDS ?? 10_000);
-	const t = await submitThroughput(records);
+	const t = await submitThroughput(await benchDb(), records);
 	console.log(
 		`submit: ${t.stored} records in ${POOL} runs at ${t.submitPerS.toFixed(0)} records/s; plain INSERT of the same ` +
 			`${t.inserted} rows at ${t.insertPerS.toFixed(0)} rows/s (pool ${POOL}) → ratio ` +

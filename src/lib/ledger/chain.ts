@@ -6,7 +6,7 @@
  * record and recompute every later hash. {@link verifyAgainstAnchor} closes that gap with a head kept outside the
  * database (printed on a release PDF, sent in the daily digest).
  */
-import { type RecordDraft, recordHash, type StoredRecord } from './record';
+import { type LedgerRecord, type RecordDraft, recordHash, type StoredRecord } from './record';
 
 /** The last record of a run's chain, which is all an append needs. */
 export interface ChainHead {
@@ -25,9 +25,16 @@ export function headOf(r: StoredRecord): ChainHead {
  * seq 1 and prevHash null). Pure: the caller reads the head and inserts the result inside one transaction that holds
  * the run's row lock, so two submissions can never both follow the same head.
  *
+ * `hash` is {@link recordHash} unless the caller passes an equal one (the server passes node:crypto's sha256 over
+ * the same preimage, `$lib/server/ledger-hash`; a unit test holds them equal).
+ *
  * @throws {Error} when `head` belongs to another run; {@link JcsError} when the body is not plain JSON.
  */
-export function appendTo(head: ChainHead | null, draft: RecordDraft): StoredRecord {
+export function appendTo(
+	head: ChainHead | null,
+	draft: RecordDraft,
+	hash: (r: LedgerRecord) => string = recordHash
+): StoredRecord {
 	if (head && head.runId !== draft.runId) {
 		throw new Error(`Record ${draft.id} is for run ${draft.runId} but the chain head is of run ${head.runId}.`);
 	}
@@ -39,7 +46,7 @@ export function appendTo(head: ChainHead | null, draft: RecordDraft): StoredReco
 		body: draft.body,
 		prevHash: head ? head.hash : null
 	};
-	return { ...record, hash: recordHash(record) };
+	return { ...record, hash: hash(record) };
 }
 
 /** Why a chain does not verify. */

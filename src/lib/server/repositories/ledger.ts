@@ -93,6 +93,50 @@ export interface UnlessLogged {
 	detail: Record<string, string>;
 }
 
+/** The columns of a ledger row, in the order of {@link recordValues} (one list for the fast and the full path). */
+const RECORD_COLUMNS = [
+	'id',
+	'run_id',
+	'seq',
+	'kind',
+	'body',
+	'prev_hash',
+	'hash',
+	'submission_hash',
+	'signer_id',
+	'signer_role',
+	'device_id',
+	'device_time',
+	'server_time',
+	'engine_version',
+	'signed_offline'
+]
+	.map((n) => `"${n}"`)
+	.join(', ');
+/** `?` placeholders for {@link recordValues}, with the casts the values need. */
+const RECORD_PLACEHOLDERS = '?, ?, ?, ?, ?::jsonb, ?, ?, ?, ?, ?, ?, ?::timestamptz, ?::timestamptz, ?, ?';
+
+/** The values of {@link RECORD_COLUMNS} for one appended record. */
+function recordValues(record: StoredRecord, c: RecordColumns): unknown[] {
+	return [
+		record.id,
+		record.runId,
+		record.seq,
+		record.kind,
+		JSON.stringify(record.body),
+		record.prevHash,
+		record.hash,
+		c.submissionHash,
+		c.signerId,
+		c.signerRole,
+		c.deviceId,
+		c.deviceTime?.toISOString() ?? null,
+		c.serverTime.toISOString(),
+		c.engineVersion,
+		c.signedOffline
+	];
+}
+
 /**
  * The INSERT of an appended record and the advance of its run's head, as one statement in `tx` (no unit-of-work
  * changeset): the submit route's hot path. Call with the run's row lock held (`runs.lockForAppend`). The in-memory
@@ -108,33 +152,16 @@ export async function insertAndAdvance(
 	c: RecordColumns,
 	opts: { unlessLogged?: UnlessLogged } = {}
 ): Promise<boolean> {
-	const q = (n: number) => Array.from({ length: n }, () => '?').join(', ');
 	const u = opts.unlessLogged;
 	const guard = u
 		? ` where not exists (select 1 from "admin_log" where "action" = ? and "subject_type" = ? and "subject_id" = ? and "detail" @> ?::jsonb)`
 		: '';
 	const result = await tx.execute<{ affectedRows: number }>(
-		`with "ins" as (insert into "ledger_record" ("id", "run_id", "seq", "kind", "body", "prev_hash", "hash", ` +
-			`"submission_hash", "signer_id", "signer_role", "device_id", "device_time", "server_time", "engine_version", ` +
-			`"signed_offline") select ${q(4)}, ?::jsonb, ${q(6)}, ?::timestamptz, ?::timestamptz, ?, ?${guard} returning "id") ` +
-			`update "run" set "head_hash" = ?, "record_count" = ?, "updated_at" = ?::timestamptz ` +
+		`with "ins" as (insert into "ledger_record" (${RECORD_COLUMNS}) select ${RECORD_PLACEHOLDERS}${guard} ` +
+			`returning "id") update "run" set "head_hash" = ?, "record_count" = ?, "updated_at" = ?::timestamptz ` +
 			`where "id" = ? and exists (select 1 from "ins")`,
 		[
-			record.id,
-			record.runId,
-			record.seq,
-			record.kind,
-			JSON.stringify(record.body),
-			record.prevHash,
-			record.hash,
-			c.submissionHash,
-			c.signerId,
-			c.signerRole,
-			c.deviceId,
-			c.deviceTime?.toISOString() ?? null,
-			c.serverTime.toISOString(),
-			c.engineVersion,
-			c.signedOffline,
+			...recordValues(record, c),
 			...(u ? [u.action, u.subjectType, u.subjectId, JSON.stringify(u.detail)] : []),
 			record.hash,
 			record.seq,
@@ -154,24 +181,43 @@ export interface ExpectedHead {
 	reworkSteps: number[] | null;
 }
 
-const col = (names: string[]) => names.map((n) => `"${n}"`).join(', ');
-const RECORD_COLUMNS = col([
-	'id',
-	'run_id',
-	'seq',
-	'kind',
-	'body',
-	'prev_hash',
-	'hash',
-	'submission_hash',
-	'signer_id',
-	'signer_role',
-	'device_id',
-	'device_time',
-	'server_time',
-	'engine_version',
-	'signed_offline'
-]);
+/** A SQL literal of one bound value (strings quoted as pg's `escapeLiteral` does; numbers finite). */
+function literal(v: unknown): string {
+	if (v === null || v === undefined) return 'null';
+	if (typeof v === 'boolean') return v ? 'true' : 'false';
+	if (typeof v === 'number' && Number.isFinite(v)) return String(v);
+	if (typeof v !== 'string') throw new Error(`Cannot write a ${typeof v} into the append statement.`);
+	const quoted = `'${v.replace(/'/g, "''")}'`;
+	return v.includes('\\') ? ` E${quoted.replace(/\\/g, '\\\\')}` : quoted;
+}
+
+/** `sql` with each `?` replaced by the literal of the next value (the statement text has no other `?`). */
+function inline(sql: string, values: unknown[]): string {
+	let i = 0;
+	const out = sql.replace(/\?/g, () => literal(values[i++]));
+	if (i !== values.length) throw new Error(`The append statement has ${i} placeholders for ${values.length} values.`);
+	return out;
+}
+
+/** The fast append's statement text, placeholders for: the record, the expected head, the unless-logged entry, the new head. */
+const FAST_APPEND =
+	`select 1 from "run" where "id" = ? for update;\n` +
+	`with "ins" as (insert into "ledger_record" (${RECORD_COLUMNS}) select ${RECORD_PLACEHOLDERS} ` +
+	`where exists (select 1 from "run" where "id" = ? and "head_hash" is not distinct from ? and "record_count" = ? ` +
+	`and "state" = ? and "rework_steps" is not distinct from ?::jsonb) ` +
+	`and not exists (select 1 from "admin_log" where "action" = ? and "subject_type" = ? and "subject_id" = ? and ` +
+	`"detail" @> ?::jsonb) returning "id") ` +
+	`update "run" set "head_hash" = ?, "record_count" = ?, "updated_at" = ?::timestamptz ` +
+	`where "id" = ? and exists (select 1 from "ins")`;
+
+/** The pg client of the ORM's pool, typed as little as the fast append uses. */
+interface PooledClient {
+	query(text: string): Promise<{ rowCount: number | null }[] | { rowCount: number | null }>;
+}
+interface ConnectionPool {
+	acquireConnection(): Promise<PooledClient>;
+	releaseConnection(c: PooledClient): Promise<unknown>;
+}
 
 /**
  * One append in ONE round trip and its own transaction: a two-statement simple query, which PostgreSQL runs as one
@@ -179,8 +225,11 @@ const RECORD_COLUMNS = col([
  * (`SELECT … FOR UPDATE`); the second — with its own snapshot, taken once the lock is held — inserts the record and
  * advances the head only if the run's row is still `expect` (same head, count, state and rework steps: the record's
  * `prevHash`/`seq` were chained on it) and no `unlessLogged` entry exists. Returns whether it stored the record;
- * false (or a thrown database error) means nothing was stored and the caller takes the full path. Values are
- * escaped by the ORM's own formatter, as `execute` does.
+ * false (or a thrown database error) means nothing was stored and the caller takes the full path.
+ *
+ * The hot path of the submit route: the text goes straight to a pooled `pg` client (no query builder, no ORM
+ * formatter), values written as literals by {@link literal} — a simple Query message cannot carry bindings, and
+ * only a simple query runs both statements in one implicit transaction.
  */
 export async function lockAndAppendIfHead(
 	em: EntityManager,
@@ -189,48 +238,29 @@ export async function lockAndAppendIfHead(
 	expect: ExpectedHead,
 	unlessLogged: UnlessLogged
 ): Promise<boolean> {
-	const f = (sql: string, params: unknown[]) => em.getPlatform().formatQuery(sql, params);
-	const lock = f(`select 1 from "run" where "id" = ? for update`, [record.runId]);
-	const append = f(
-		`with "ins" as (insert into "ledger_record" (${RECORD_COLUMNS}) select ?, ?, ?, ?, ?::jsonb, ?, ?, ?, ?, ?, ?, ` +
-			`?::timestamptz, ?::timestamptz, ?, ? where exists (select 1 from "run" where "id" = ? and "head_hash" is not ` +
-			`distinct from ? and "record_count" = ? and "state" = ? and "rework_steps" is not distinct from ?::jsonb) ` +
-			`and not exists (select 1 from "admin_log" where "action" = ? and "subject_type" = ? and "subject_id" = ? and ` +
-			`"detail" @> ?::jsonb) returning "id") ` +
-			`update "run" set "head_hash" = ?, "record_count" = ?, "updated_at" = ?::timestamptz ` +
-			`where "id" = ? and exists (select 1 from "ins")`,
-		[
-			record.id,
-			record.runId,
-			record.seq,
-			record.kind,
-			JSON.stringify(record.body),
-			record.prevHash,
-			record.hash,
-			c.submissionHash,
-			c.signerId,
-			c.signerRole,
-			c.deviceId,
-			c.deviceTime?.toISOString() ?? null,
-			c.serverTime.toISOString(),
-			c.engineVersion,
-			c.signedOffline,
-			record.runId,
-			expect.headHash,
-			expect.recordCount,
-			expect.state,
-			expect.reworkSteps === null ? null : JSON.stringify(expect.reworkSteps),
-			unlessLogged.action,
-			unlessLogged.subjectType,
-			unlessLogged.subjectId,
-			JSON.stringify(unlessLogged.detail),
-			record.hash,
-			record.seq,
-			c.serverTime.toISOString(),
-			record.runId
-		]
-	);
-	// No bindings: the driver sends one simple Query message, so both statements share one implicit transaction.
-	const results = (await em.getConnection().getKnex().raw(`${lock};\n${append}`)) as { rowCount: number | null }[];
-	return Array.isArray(results) && results.length === 2 && results[1].rowCount === 1;
+	const text = inline(FAST_APPEND, [
+		record.runId,
+		...recordValues(record, c),
+		record.runId,
+		expect.headHash,
+		expect.recordCount,
+		expect.state,
+		expect.reworkSteps === null ? null : JSON.stringify(expect.reworkSteps),
+		unlessLogged.action,
+		unlessLogged.subjectType,
+		unlessLogged.subjectId,
+		JSON.stringify(unlessLogged.detail),
+		record.hash,
+		record.seq,
+		c.serverTime.toISOString(),
+		record.runId
+	]);
+	const pool = em.getConnection().getKnex().client as ConnectionPool;
+	const client = await pool.acquireConnection();
+	try {
+		const results = await client.query(text);
+		return Array.isArray(results) && results.length === 2 && results[1].rowCount === 1;
+	} finally {
+		await pool.releaseConnection(client);
+	}
 }
