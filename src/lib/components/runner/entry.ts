@@ -3,7 +3,8 @@
  * $lib/checks/evaluate). Keypad readings are "slots" (a bore position, a fastener in a pass, a fill amount); flags
  * are the one-tap answers (confirmed, zeroed, an option, a fluid level).
  */
-import type { TorqueToolContext } from '$lib/checks/evaluate';
+import { evaluate, type Evaluation, type TorqueToolContext } from '$lib/checks/evaluate';
+import { currentRecords } from '$lib/ledger/step-state';
 import { unitById } from '$lib/checks/units';
 import type { Checkpoint } from '$lib/procedure/model';
 
@@ -24,7 +25,7 @@ export interface EntryState {
 	/** Free text (text checkpoints). */
 	text?: string;
 	/** Part number, serial and lot as tapped or typed (part and fluid checkpoints). */
-	part?: { number?: string; serial?: string; lot?: string };
+	part?: { number?: string; serial?: string; lot?: string; quantity?: number };
 	/** Photos uploaded for the checkpoint, in the order taken. */
 	photos?: { id: string; url: string }[];
 	/** Preset wrench: "reached" taps by slot key (`p<pass>/<fastener>`). */
@@ -177,7 +178,9 @@ export function toEntry(cp: Checkpoint, s: EntryState, mode: TorqueMode = 'indic
 			return {
 				number: trimmed(s.part?.number),
 				...(cp.serial && { serial: trimmed(s.part?.serial) }),
-				...(cp.lot && { lot: trimmed(s.part?.lot) })
+				...(cp.lot && { lot: trimmed(s.part?.lot) }),
+				// A quantity of 1 is implied (the engine's default); more must be counted on the tablet.
+				...(cp.quantity > 1 && s.part?.quantity !== undefined && { quantity: s.part.quantity })
 			};
 		case 'text':
 			return { text: s.text ?? '' };
@@ -201,3 +204,137 @@ export function signedEntries(records: { kind: string; body: unknown }[]): Recor
 	}
 	return out;
 }
+
+/** What the run's current sign-off recorded for one checkpoint (the signed entry and what it was judged with). */
+export interface SignedCheckpoint {
+	recordId: string;
+	entry: unknown;
+	/** The preset wrench's setting per pass, as sent beside the entry. */
+	setTo?: string[];
+	/** The tools the sign-off names (the first torque wrench among them tightened its torque checkpoints). */
+	tools: string[];
+	/** The server's evaluation stored in the record; absent on a record the server has not stored yet. */
+	evaluation?: Evaluation;
+}
+
+const strings = (v: unknown): string[] | undefined =>
+	Array.isArray(v) && v.every((x) => typeof x === 'string') ? v : undefined;
+
+/**
+ * Each checkpoint's entry in the latest current sign-off of its step (corrected sign-offs no longer count), with the
+ * wrench settings, tools and the server's evaluation stored beside it, so a reloaded runner shows it as signed.
+ */
+export function signedCheckpoints(
+	records: { id: string; kind: string; body: unknown }[]
+): Record<string, SignedCheckpoint> {
+	const out: Record<string, SignedCheckpoint> = {};
+	for (const r of currentRecords(records)) {
+		if (r.kind !== 'signoff' || !r.body || typeof r.body !== 'object') continue;
+		const body = r.body as { entries?: unknown; tools?: unknown; evaluation?: unknown };
+		const tools = strings(body.tools) ?? [];
+		const evaluations = Array.isArray(body.evaluation) ? (body.evaluation as Evaluation[]) : [];
+		for (const e of Array.isArray(body.entries) ? body.entries : []) {
+			const { checkpointId, entry, setTo } = (e ?? {}) as { checkpointId?: unknown; entry?: unknown; setTo?: unknown };
+			if (typeof checkpointId !== 'string') continue;
+			const evaluation = evaluations.find((x) => x && x.checkpointId === checkpointId);
+			out[checkpointId] = {
+				recordId: r.id,
+				entry,
+				...(strings(setTo) && { setTo: strings(setTo) }),
+				tools,
+				...(evaluation && { evaluation })
+			};
+		}
+	}
+	return out;
+}
+
+/** True while nothing has been entered on the tablet for the checkpoint since the page loaded. */
+export function isPristine(s: EntryState): boolean {
+	return Object.keys(s.values).length === 0 && Object.keys(s).every((k) => k === 'values');
+}
+
+/**
+ * How a signed checkpoint is judged on screen: the server's stored evaluation when the record carries one; else, for
+ * torque, the engine on the signed entry with the wrench and settings the record names (a record still waiting on
+ * the tablet); else `fallback` (the page's own evaluation of the signed entry).
+ */
+export function signedEvaluation(
+	cp: Checkpoint,
+	signed: SignedCheckpoint,
+	torqueTools: Record<string, TorqueToolContext>,
+	fallback: Evaluation
+): Evaluation {
+	if (signed.evaluation) return signed.evaluation;
+	if (cp.kind !== 'torque') return fallback;
+	const wrench = chosenWrench(signed.tools, torqueTools);
+	return evaluate(cp, signed.entry, wrench ? { tool: signed.setTo ? { ...wrench, setTo: signed.setTo } : wrench } : {});
+}
+
+type Obj = Record<string, unknown>;
+const obj = (v: unknown): Obj => (v && typeof v === 'object' && !Array.isArray(v) ? (v as Obj) : {});
+const str = (v: unknown) => (typeof v === 'string' ? v : undefined);
+
+/** The runner's entry state that shows a signed entry again (the inverse of `toEntry`). */
+export function stateFromSigned(cp: Checkpoint, signed: SignedCheckpoint): EntryState {
+	const e = obj(signed.entry);
+	const values: Record<string, string> = {};
+	const put = (key: string, v: unknown) => {
+		if (typeof v === 'string' && v) values[key] = v;
+	};
+	switch (cp.kind) {
+		case 'measure':
+			(Array.isArray(e.readings) ? e.readings : []).forEach((r, i) => put(`r${i}`, r));
+			return { values, ...(typeof e.zeroed === 'boolean' && { zeroed: e.zeroed }) };
+		case 'torque': {
+			const reached: Record<string, boolean> = {};
+			const passes = Array.isArray(e.passes) ? e.passes : [];
+			passes.forEach((p, i) => {
+				for (const [f, rec] of Object.entries(obj(p))) {
+					if (obj(rec).reached === true) reached[`p${i}/${f}`] = true;
+					put(`p${i}/${f}`, obj(rec).value);
+				}
+			});
+			signed.setTo?.forEach((v, i) => put(`set${i}`, v));
+			return { values, ...(Object.keys(reached).length > 0 && { reached }) };
+		}
+		case 'fluid':
+			put('amount', e.amount);
+			put('temperature', e.temperature);
+			return {
+				values,
+				...(typeof e.specConfirmed === 'boolean' && { specConfirmed: e.specConfirmed }),
+				...(str(e.level) && { level: e.level as EntryState['level'] }),
+				...(str(e.lot) && { part: { lot: str(e.lot) } })
+			};
+		case 'test':
+			put('reading', e.reading);
+			return { values, ...(str(e.result) && { option: str(e.result) }) };
+		case 'clearance':
+			put('clearance', e.reading);
+			return { values };
+		case 'confirm':
+			return { values, ...(typeof e.confirmed === 'boolean' && { confirmed: e.confirmed }), photos: photosOf(e) };
+		case 'choice':
+			return { values, ...(str(e.option) && { option: str(e.option) }) };
+		case 'part':
+			return {
+				values,
+				part: {
+					number: str(e.number),
+					serial: str(e.serial),
+					lot: str(e.lot),
+					...(typeof e.quantity === 'number' && { quantity: e.quantity })
+				}
+			};
+		case 'text':
+			return { values, text: str(e.text) ?? '' };
+		case 'photo':
+			return { values, photos: photosOf(e) };
+		default:
+			return { values };
+	}
+}
+
+/** Photos are served by id (`GET /images/[id]`). */
+const photosOf = (e: Obj) => (strings(e.photos) ?? []).map((id) => ({ id, url: `/images/${id}` }));

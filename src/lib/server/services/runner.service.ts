@@ -11,6 +11,7 @@ import * as procedures from '../repositories/procedures';
 import * as runs from '../repositories/runs';
 import { findUsable } from '../repositories/tools';
 import * as users from '../repositories/users';
+import { toolChoices, type ToolChoice } from './run-tool-choices';
 import { versionNotice, type VersionNotice } from './run-versions.service';
 import { getRun, maySee, type Result, type RunView, type Viewer } from './runs.service';
 
@@ -95,6 +96,8 @@ export interface RunnerView {
 	/** Sanitised step HTML by step index (the engine's `renderStep`). */
 	stepHtml: string[];
 	tools: { id: string; assetTag: string; kind: string; description: string }[];
+	/** Per step that lists tools: every active tool, usable first, the others with the reason in words. */
+	toolChoices: Record<number, ToolChoice[]>;
 	signers: { id: string; name: string; role: RoleName }[];
 	/** Who may verify a critical step (lead or quality); the server refuses whoever did the step. */
 	verifiers: { id: string; name: string; role: RoleName }[];
@@ -125,6 +128,7 @@ export async function runnerView(em: EntityManager, viewer: Viewer, runId: strin
 			model,
 			stepHtml: model.steps.map((s) => renderStep(s)),
 			tools,
+			toolChoices: await toolChoices(em, model),
 			signers: await activeSigners(em),
 			verifiers: await activeSigners(em, VERIFYING_ROLES),
 			versionNotice: await versionNotice(em, viewer, row)
