@@ -2,13 +2,13 @@ import { expect, test, type Browser, type Page } from '@playwright/test';
 import { uuidv7 } from '../../src/lib/ledger/uuid-v7';
 import { DEMO, ownerQuery, signIn } from './support';
 import { keyIn, LANDSCAPE, signAs, tablet } from './runner-support';
+import { recordAsTechnician, startBoreRun, TECH_NAME } from './quality-support';
 
 // Demo data (src/lib/server/quality-seed.ts, invented, not service data): the run of "Shift-piston bore 1 re-check
 // after a shift complaint" on the job "Fluid leak at the pan; slipping in fourth." awaits review with an open
 // finding on bore 1 (22.034 mm against 22 mm H7 = 22.000–22.021 mm: ISO 286-2, IT7 for 18–30 mm is 21 µm, H puts
 // EI at 0). Demo PINs (src/lib/server/db/seed.ts): Tomas Reyna 111111, Lena Marsh 222222, Priya Castell 333333.
 const QUALITY_PIN = '333333';
-const TECH_NAME = 'Tomas Reyna';
 const DEMO_FINDING = /Bore 1 reads 22\.034 mm at the first position/;
 const RELEASED_REFUSAL = 'This run was released by the quality lead: its record is closed and takes no more records.';
 
@@ -21,39 +21,14 @@ async function desk(browser: Browser): Promise<Page> {
 
 /** Through the API: the lead starts a bore-inspection run for the technician, who records a finding on step 3. */
 async function runWithFinding(browser: Browser): Promise<string> {
-	const [job] = await ownerQuery<{ id: string }>(`select id from job where complaint = $1`, ['Harsh 2–3 upshift.']);
-	const [version] = await ownerQuery<{ id: string; content_hash: string }>(
-		`select v.id, v.content_hash from procedure_version v join procedure p on p.id = v.procedure_id
-		 where p.title ilike '%shift-piston bore inspection%' and v.retired_at is null order by v.number desc limit 1`
-	);
-	const [tech] = await ownerQuery<{ id: string }>(`select id from app_user where email = $1`, [DEMO.technician.email]);
-	const lead = await tablet(browser, DEMO.lead.email);
-	const started = await lead.request.post('/api/runs', {
-		data: { jobId: job.id, procedureVersionId: version.id, contentHash: version.content_hash, assignedToId: tech.id }
-	});
-	expect(started.status(), await started.text()).toBe(201);
-	const runId = ((await started.json()) as { id: string }).id;
-	await lead.context().close();
-	const bench = await tablet(browser, DEMO.technician.email);
+	const run = await startBoreRun(browser);
 	const findingId = uuidv7();
-	const sent = await bench.request.post(`/api/runs/${runId}/records`, {
-		data: {
-			records: [
-				{
-					id: findingId,
-					runId,
-					kind: 'finding',
-					body: { stepIndex: 2, checkpointId: 'bore-1', text: 'Light scoring in bore 1 (release spec).' },
-					signer: { id: tech.id, role: 'technician' },
-					deviceId: 'quality-release-spec-tablet'
-				}
-			],
-			pins: { [tech.id]: '111111' }
-		}
+	await recordAsTechnician(browser, run, {
+		id: findingId,
+		kind: 'finding',
+		body: { stepIndex: 2, checkpointId: 'bore-1', text: 'Light scoring in bore 1 (release spec).' },
+		deviceId: 'quality-release-spec-tablet'
 	});
-	const answers = (await sent.json()) as { answers: { status: string }[] };
-	expect(answers.answers?.[0], JSON.stringify(answers)).toMatchObject({ status: 'accepted' });
-	await bench.context().close();
 	return findingId;
 }
 

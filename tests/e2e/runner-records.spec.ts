@@ -1,5 +1,6 @@
-import { expect, test, type Browser, type Locator, type Page } from '@playwright/test';
-import { DEMO, ownerQuery, signIn } from './support';
+import { expect, test, type Page } from '@playwright/test';
+import { DEMO, ownerQuery } from './support';
+import { publishAndStart, signAs, stamp, tablet, typePin } from './runner-support';
 
 // Invented for the test (not service data): three one-tap steps of a KTX-7 procedure. Demo people
 // (src/lib/server/db/seed.ts): Tomas Reyna (technician, PIN 111111), Wren Okafor (technician, 555555), Lena Marsh
@@ -7,11 +8,9 @@ import { DEMO, ownerQuery, signIn } from './support';
 const TOMAS = 'Tomas Reyna';
 const WREN = 'Wren Okafor';
 const LENA = 'Lena Marsh';
-const TABLET = { width: 820, height: 1180 };
-const stamp = `${Date.now().toString(36)}-${Math.random().toString(36).slice(2, 6)}`;
 
 const source = `---
-title: Records walk-through ${stamp}
+title: Records walk-through ${stamp()}
 family: KTX-7 (invented seven-speed dual-clutch transaxle)
 purpose: Walk N/A, handover, correction and unlock in the runner.
 specs: Invented for a test; not service data.
@@ -36,49 +35,6 @@ prompt: Filter seated.
 \`\`\`
 `;
 
-async function tablet(browser: Browser, email: string): Promise<Page> {
-	const page = await (await browser.newContext({ viewport: TABLET })).newPage();
-	await signIn(page, email);
-	await expect(page).not.toHaveURL(/\/signin/);
-	return page;
-}
-
-/** Through the API: the lead writes and submits the procedure, the quality lead approves, the lead starts a run. */
-async function publishAndStart(browser: Browser): Promise<string> {
-	const lead = await tablet(browser, DEMO.lead.email);
-	const created = await lead.request.post('/api/procedures', { data: { source } });
-	expect(created.status(), await created.text()).toBe(201);
-	const { id } = (await created.json()) as { id: string };
-	expect((await lead.request.post(`/api/procedures/${id}/submit`)).ok()).toBe(true);
-	const quality = await tablet(browser, DEMO.quality.email);
-	const approved = await quality.request.post(`/api/procedures/${id}/approve`, {
-		data: { changeNote: 'Records test procedure (invented).' }
-	});
-	expect(approved.status(), await approved.text()).toBe(201);
-	await quality.context().close();
-	const [version] = await ownerQuery<{ id: string; content_hash: string }>(
-		`select id, content_hash from procedure_version where procedure_id = $1 and number = 1`,
-		[id]
-	);
-	const [job] = await ownerQuery<{ id: string }>(`select id from job where complaint = $1`, ['Harsh 2–3 upshift.']);
-	const [tech] = await ownerQuery<{ id: string }>(`select id from app_user where email = $1`, [DEMO.technician.email]);
-	const run = await lead.request.post('/api/runs', {
-		data: { jobId: job.id, procedureVersionId: version.id, contentHash: version.content_hash, assignedToId: tech.id }
-	});
-	expect(run.status(), await run.text()).toBe(201);
-	const { id: runId } = (await run.json()) as { id: string };
-	await lead.context().close();
-	return runId;
-}
-
-async function typePin(panel: Locator, pin: string) {
-	for (const d of pin) await panel.getByRole('button', { name: d, exact: true }).click();
-	await panel.getByRole('button', { name: 'Sign', exact: true }).click();
-}
-async function signAs(panel: Locator, name: string, pin: string) {
-	await panel.getByRole('button', { name, exact: true }).click();
-	await typePin(panel, pin);
-}
 async function signStep(page: Page, n: number, checkpoint: string, name: string, pin: string) {
 	await page
 		.getByRole('region', { name: `Checkpoint ${checkpoint}` })
@@ -92,7 +48,7 @@ test('N/A with a lead’s approval, a correction, a handover with both names, an
 	browser
 }) => {
 	test.setTimeout(240_000); // four signers, five wrong PINs and an unlock on a shared 2-core machine
-	const runId = await publishAndStart(browser);
+	const runId = await publishAndStart(browser, source);
 	const page = await tablet(browser, DEMO.technician.email);
 	await page.goto(`/runs/${runId}`);
 

@@ -1,5 +1,6 @@
-import { expect, test, type Browser, type Page } from '@playwright/test';
-import { DEMO, ownerQuery, signIn } from './support';
+import { expect, test } from '@playwright/test';
+import { DEMO } from './support';
+import { publishAndStart, tablet } from './runner-support';
 
 // Vectors from the OWASP XSS Filter Evasion Cheat Sheet (cheatsheetseries.owasp.org, "XSS Filter Evasion Cheat
 // Sheet"), a selection of those in src/lib/procedure/render.test.ts, with foreign hosts on invented .example domains.
@@ -52,47 +53,10 @@ prompt: ${PROMPT_VECTOR}
 \`\`\`
 `;
 
-async function signedIn(browser: Browser, email: string): Promise<Page> {
-	const page = await (await browser.newContext({ viewport: { width: 820, height: 1180 } })).newPage();
-	await signIn(page, email);
-	await expect(page).not.toHaveURL(/\/signin/);
-	return page;
-}
-
-/** Through the API: the lead writes and submits the procedure, the quality lead approves it, the lead starts a run. */
-async function publishAndStart(browser: Browser): Promise<string> {
-	const lead = await signedIn(browser, DEMO.lead.email);
-	const created = await lead.request.post('/api/procedures', { data: { source: source() } });
-	expect(created.status(), await created.text()).toBe(201);
-	const { id } = (await created.json()) as { id: string };
-	const submitted = await lead.request.post(`/api/procedures/${id}/submit`);
-	expect(submitted.ok(), await submitted.text()).toBe(true);
-	const quality = await signedIn(browser, DEMO.quality.email);
-	const approved = await quality.request.post(`/api/procedures/${id}/approve`, {
-		data: { changeNote: 'XSS corpus for the runner test.' }
-	});
-	expect(approved.status(), await approved.text()).toBe(201);
-	await quality.context().close();
-
-	const [version] = await ownerQuery<{ id: string; content_hash: string }>(
-		`select id, content_hash from procedure_version where procedure_id = $1 and number = 1`,
-		[id]
-	);
-	const [job] = await ownerQuery<{ id: string }>(`select id from job where complaint = $1`, ['Harsh 2–3 upshift.']);
-	const [tech] = await ownerQuery<{ id: string }>(`select id from app_user where email = $1`, [DEMO.technician.email]);
-	const run = await lead.request.post('/api/runs', {
-		data: { jobId: job.id, procedureVersionId: version.id, contentHash: version.content_hash, assignedToId: tech.id }
-	});
-	expect(run.status(), await run.text()).toBe(201);
-	const { id: runId } = (await run.json()) as { id: string };
-	await lead.context().close();
-	return runId;
-}
-
 test('OWASP XSS filter-evasion vectors in a procedure render inert in the runner', async ({ browser }) => {
 	test.setTimeout(60_000);
-	const runId = await publishAndStart(browser);
-	const page = await signedIn(browser, DEMO.technician.email);
+	const runId = await publishAndStart(browser, source());
+	const page = await tablet(browser, DEMO.technician.email);
 	const dialogs: string[] = [];
 	page.on('dialog', (d) => {
 		dialogs.push(`${d.type()}: ${d.message()}`);

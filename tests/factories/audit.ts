@@ -1,18 +1,12 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { IUser } from '../../src/lib/server/db/entities';
-import * as procedures from '../../src/lib/server/repositories/procedures';
-import * as qualifications from '../../src/lib/server/repositories/qualifications';
 import { openJob } from '../../src/lib/server/services/jobs.service';
-import { publishInitial } from '../../src/lib/server/services/procedures.service';
-import { startRun } from '../../src/lib/server/services/runs.service';
 import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
 import { submitRecords } from '../../src/lib/server/services/submit.service';
 import { makePerson } from './people';
 import { jobInput } from './registers';
-import { FAMILY, PIN, record } from './runs';
+import { PIN, publishVersion, qualify, record, startRunOn, testProcedure, viewer } from './runs';
 
 let counter = 0;
-const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
 
 /**
  * Two steps, invented for tests (not service data): a 22 mm H7 bore, 22.000 to 22.021 mm (ISO 286-2: IT7 for
@@ -21,13 +15,9 @@ const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
  */
 export function traceProcedureSource() {
 	counter += 1;
-	return `---
-title: Trace test procedure ${counter}-${Date.now().toString(36)}
-family: ${FAMILY}
-purpose: A procedure made by an audit test.
-specs: Invented for tests; not service data.
----
-
+	return testProcedure(
+		'Trace test procedure',
+		`
 ## Measure the bore
 
 \`\`\`step
@@ -46,28 +36,18 @@ tolerance: H7
 number: KL-7710-##@
 lot: required
 \`\`\`
-`;
+`,
+		'A procedure made by an audit test.'
+	);
 }
 
 /** A lead, a qualified technician with {@link PIN} and one published version of {@link traceProcedureSource}. */
 export async function makeTraceFixture(em: EntityManager) {
 	const lead = await makePerson(em, { roles: ['lead'], pin: PIN, name: 'Audit Lead' });
 	const tech = await makePerson(em, { roles: ['technician'], pin: PIN, name: `Audit Tech ${counter + 1}` });
-	qualifications.create(em, tech, lead, {
-		family: FAMILY,
-		trainedBy: lead.name,
-		trainedOn: '2025-01-05',
-		expiresOn: null,
-		notes: ''
-	});
-	const published = await publishInitial(em, traceProcedureSource(), {
-		author: viewer(lead),
-		approver: viewer(lead),
-		changeNote: 'Test version.'
-	});
-	if (!published.ok) throw new Error(published.message);
-	const version = (await procedures.findVersion(em, published.value.id, 1))!;
-	return { lead, tech, version, procedureId: published.value.id };
+	await qualify(em, tech, lead, '2025-01-05');
+	const version = await publishVersion(em, lead, traceProcedureSource());
+	return { lead, tech, version, procedureId: version.procedure.id };
 }
 
 export type TraceFixture = Awaited<ReturnType<typeof makeTraceFixture>>;
@@ -83,14 +63,7 @@ export async function signTraceRun(
 ) {
 	const job = await openJob(em, f.lead, jobInput(opts.serial ? { unitSerial: opts.serial } : {}));
 	if (!job.ok) throw new Error(job.message);
-	const run = await startRun(em, viewer(f.lead), {
-		jobId: job.value.id,
-		procedureVersionId: f.version.id,
-		contentHash: f.version.contentHash,
-		assignedToId: f.tech.id
-	});
-	if (!run.ok) throw new Error(run.message);
-	const runId = run.value.id;
+	const runId = await startRunOn(em, f.lead, f.tech, job.value.id, f.version);
 	const records = [
 		record(runId, f.tech, 'signoff', {
 			stepIndex: 0,

@@ -6,14 +6,10 @@ import { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ormOptions } from '../../mikro-orm.config';
 import { freePort, startCluster, stopCluster, withClient, type ClusterUrls } from '../../scripts/lib/postgres';
-import type { IUser } from '../../src/lib/server/db/entities';
-import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
-import { submitRecords } from '../../src/lib/server/services/submit.service';
-import { boreAttempt, makeRun, PIN, record } from '../factories/runs';
+import { makeRunWithFinding } from '../factories/runs';
 import { migrateDb } from './support/migrate';
 
 const root = join(import.meta.dirname, '..', '..');
-const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
 
 /** Runs one of our scripts under tsx against the throwaway cluster; resolves with exit code and output. */
 function script(name: string, args: string[], urls: ClusterUrls): Promise<{ code: number; out: string }> {
@@ -45,21 +41,7 @@ describe('npm run backup / restore on a throwaway cluster', () => {
 		const orm = await MikroORM.init(ormOptions(urls.appUrl));
 		let runId: string;
 		try {
-			const made = await makeRun(orm.em.fork());
-			runId = made.runId;
-			const r = await submitRecords(
-				orm.em.fork(),
-				viewer(made.tech),
-				made.runId,
-				submitBatchSchema.parse({
-					records: [
-						record(made.runId, made.tech, 'attempt', boreAttempt('22.010')),
-						record(made.runId, made.tech, 'finding', { stepIndex: 0, text: 'Scoring in bore 1.' })
-					],
-					pins: { [made.tech.id]: PIN }
-				})
-			);
-			expect(r.ok && r.value.answers.map((a) => a.status)).toEqual(['accepted', 'accepted']);
+			runId = (await makeRunWithFinding(orm)).runId;
 		} finally {
 			await orm.close(true);
 		}

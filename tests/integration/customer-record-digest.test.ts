@@ -4,7 +4,6 @@ import { join } from 'node:path';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { withClient } from '../../scripts/lib/postgres';
-import type { IUser } from '../../src/lib/server/db/entities';
 import { readCapturedMail, startFakeSmtp } from '../../src/lib/server/fake-smtp';
 import { useSmtp } from '../../src/lib/server/mail';
 import * as anchors from '../../src/lib/server/repositories/anchors';
@@ -16,14 +15,11 @@ import {
 } from '../../src/lib/server/services/customer-record.service';
 import { digestSentOn, digestSubject, runDailyDigest } from '../../src/lib/server/services/digest.service';
 import { sendAwaitingReview } from '../../src/lib/server/services/quality-mail.service';
-import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
-import { submitRecords } from '../../src/lib/server/services/submit.service';
 import { makePerson } from '../factories/people';
-import { boreAttempt, makeRun, PIN, record } from '../factories/runs';
+import { makeRunWithFinding } from '../factories/runs';
 import { testDbUrls } from './db-urls';
 import { migratedAppOrm } from './support/orm';
 
-const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
 const tokenIn = (text: string) => text.match(/\/record\/([A-Za-z0-9_-]+)/)?.[1] ?? '';
 
 describe('customer rebuild record, review mail and the daily digest', () => {
@@ -48,24 +44,7 @@ describe('customer rebuild record, review mail and the daily digest', () => {
 	});
 	const mailTo = async (to: string) => (await readCapturedMail(mailDir)).filter((m) => m.to.includes(to));
 
-	async function runWithFinding() {
-		const made = await makeRun(orm.em.fork());
-		const r = await submitRecords(
-			orm.em.fork(),
-			viewer(made.tech),
-			made.runId,
-			submitBatchSchema.parse({
-				records: [
-					record(made.runId, made.tech, 'attempt', boreAttempt('22.010')),
-					record(made.runId, made.tech, 'finding', { stepIndex: 0, text: 'Scoring in bore 1.' })
-				],
-				pins: { [made.tech.id]: PIN }
-			})
-		);
-		if (!r.ok) throw new Error(r.message);
-		expect(r.value.answers.map((a) => a.status)).toEqual(['accepted', 'accepted']);
-		return made;
-	}
+	const runWithFinding = () => makeRunWithFinding(orm);
 
 	it('mails the link, stores only its sha256, notes it without the address, and refuses it once expired', async () => {
 		const made = await runWithFinding();

@@ -7,15 +7,11 @@ import * as held from '../../src/lib/server/repositories/held-records';
 import * as ledger from '../../src/lib/server/repositories/ledger';
 import { enrol, list, revoke } from '../../src/lib/server/services/devices.service';
 import { publicJwkSchema } from '../../src/lib/devices/schema';
-import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
-import { submitRecords } from '../../src/lib/server/services/submit.service';
 import { makeKeys, makeTablet, signWith } from '../factories/devices';
 import { makePerson } from '../factories/people';
-import { boreAttempt, makeRun, PIN, record } from '../factories/runs';
+import { boreAttempt, makeRun, record, submitAs } from '../factories/runs';
 import { testDbUrls } from './db-urls';
 import { migratedAppOrm } from './support/orm';
-
-const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
 
 describe('enrolled tablets and device signatures', () => {
 	let orm: MikroORM;
@@ -24,12 +20,7 @@ describe('enrolled tablets and device signatures', () => {
 	});
 	afterAll(() => orm.close(true));
 
-	async function submit(actor: IUser, runId: string, records: unknown[]) {
-		const batch = submitBatchSchema.parse({ records, pins: { [actor.id]: PIN } });
-		const r = await submitRecords(orm.em.fork(), viewer(actor), runId, batch);
-		if (!r.ok) throw new Error(r.message);
-		return r.value.answers;
-	}
+	const submit = (actor: IUser, runId: string, records: unknown[]) => submitAs(orm, actor, runId, records);
 	const bodyOf = async (id: string) => (await ledger.findById(orm.em.fork(), id))?.body as Record<string, unknown>;
 
 	it('stores a record signed by an enrolled tablet, stamped verified with the key thumbprint', async () => {

@@ -1,7 +1,6 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ormOptions } from '../../mikro-orm.config';
-import { withClient } from '../../scripts/lib/postgres';
 import { Job, LedgerRecord, Procedure, Run } from '../../src/lib/server/db/entities';
 import { seedDemo } from '../../src/lib/server/db/seed';
 import { seedHistory } from '../../src/lib/server/history-seed';
@@ -9,34 +8,23 @@ import * as tools from '../../src/lib/server/repositories/tools';
 import { verifyAll } from '../../src/lib/server/services/audit.service';
 import { runSearchSchema, searchRuns, suspectTool } from '../../src/lib/server/services/search.service';
 import { trends } from '../../src/lib/server/services/trends.service';
-import { testDbUrls } from './db-urls';
 import { migrateDb } from './support/migrate';
+import { scratchDatabase } from './support/scratch-db';
 
 // An empty database of its own: the demo library is published only into an empty one, as at a first `npm start`.
-const name = `benchstamp_hist_${process.pid}_${Date.now().toString(36)}`;
-const urls = testDbUrls();
-const withDb = (url: string) => {
-	const u = new URL(url);
-	u.pathname = `/${name}`;
-	return u.toString();
-};
+const db = scratchDatabase('benchstamp_hist');
 
 describe('demo history seed', () => {
 	let orm: MikroORM;
 	beforeAll(async () => {
-		if (!urls.superuserUrl) throw new Error('this test needs TEST_SUPERUSER_DATABASE_URL to create an empty database');
-		await withClient(urls.superuserUrl, async (c) => {
-			await c.query(`create database ${name} owner benchstamp_owner`);
-			await c.query(`revoke all on database ${name} from public`);
-			await c.query(`grant connect on database ${name} to benchstamp_app`);
-		});
-		await migrateDb(withDb(urls.ownerUrl), withDb(urls.appUrl));
-		orm = await MikroORM.init(ormOptions(withDb(urls.appUrl)));
+		await db.create();
+		await migrateDb(db.ownerUrl, db.appUrl);
+		orm = await MikroORM.init(ormOptions(db.appUrl));
 		await seedDemo(orm.em.fork());
 	}, 120_000);
 	afterAll(async () => {
 		await orm?.close(true);
-		await withClient(urls.superuserUrl!, (c) => c.query(`drop database if exists ${name} with (force)`));
+		await db.drop();
 	});
 
 	const procedureId = async (title: string) => (await orm.em.fork().findOneOrFail(Procedure, { title })).id;

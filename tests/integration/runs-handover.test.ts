@@ -7,8 +7,7 @@ import * as runs from '../../src/lib/server/repositories/runs';
 import { latestHandover } from '../../src/lib/server/services/run-records';
 import { makePerson } from '../factories/people';
 import { magnet, runState, submitAs, threeStepRun, viewer } from '../factories/run-records';
-import { FAMILY, PIN, record } from '../factories/runs';
-import * as qualifications from '../../src/lib/server/repositories/qualifications';
+import { PIN, qualify, record } from '../factories/runs';
 import { migratedAppOrm } from './support/orm';
 
 describe('handover at the end of a shift', () => {
@@ -22,14 +21,7 @@ describe('handover at the end of a shift', () => {
 		const em = orm.em.fork();
 		const { tech, lead, runId } = await threeStepRun(em);
 		const next = await makePerson(em, { roles: ['technician'], pin: PIN, name: 'Night Technician' });
-		qualifications.create(em, next, lead, {
-			family: FAMILY,
-			trainedBy: lead.name,
-			trainedOn: '2026-01-05',
-			expiresOn: null,
-			notes: ''
-		});
-		await em.flush();
+		await qualify(em, next, lead);
 		// Before the handover the next technician does not see the run.
 		expect((await getRun(orm.em.fork(), viewer(next), runId)).ok).toBe(false);
 		const h = record(runId, tech, 'handover', {

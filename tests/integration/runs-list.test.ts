@@ -3,8 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listRuns, runListQuerySchema } from '../../src/lib/server/services/run-list.service';
 import { makePerson } from '../factories/people';
 import { magnet, submitAs, threeStepRun, viewer } from '../factories/run-records';
-import { FAMILY, PIN, record } from '../factories/runs';
-import * as qualifications from '../../src/lib/server/repositories/qualifications';
+import { PIN, qualify, record } from '../factories/runs';
 import { migratedAppOrm } from './support/orm';
 
 describe('GET /api/runs: the run list', () => {
@@ -22,14 +21,7 @@ describe('GET /api/runs: the run list', () => {
 		const b = await threeStepRun(em); // assigned to b.tech
 		const c = await threeStepRun(em);
 		const helper = await makePerson(em, { roles: ['technician'], pin: PIN, name: 'Helper' });
-		qualifications.create(em, helper, a.lead, {
-			family: FAMILY,
-			trainedBy: a.lead.name,
-			trainedOn: '2026-01-05',
-			expiresOn: null,
-			notes: ''
-		});
-		await em.flush();
+		await qualify(em, helper, a.lead);
 		// helper signs on run b, and run c is handed over to them; run a is not theirs.
 		await submitAs(orm, b.tech, b.runId, [record(b.runId, helper, 'signoff', magnet)], [helper]);
 		await submitAs(

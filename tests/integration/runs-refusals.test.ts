@@ -2,28 +2,18 @@ import type { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { IUser } from '../../src/lib/server/db/entities';
 import * as ledger from '../../src/lib/server/repositories/ledger';
-import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
-import { submitRecords } from '../../src/lib/server/services/submit.service';
 import { makeCalibratedTool } from '../factories/registers';
-import { FAMILY, makeRun, PIN, record } from '../factories/runs';
+import { makeRun, record, submitAs, testProcedure } from '../factories/runs';
 import { migratedAppOrm } from './support/orm';
 
 // The unqualified signer, the past-due tool and the sixth wrong PIN are refused in runs.test.ts; the doer verifying
 // their own critical step in runs-verification.test.ts. This file adds the torque wrench's suitability.
 
-const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
-
-let counter = 0;
 /** One torque step, invented for tests (not service data): two screws to 8 N·m ±10 % (7.2 to 8.8 N·m). */
-function torqueSource(tool: 'any' | 'preset' = 'any') {
-	counter += 1;
-	return `---
-title: Torque test procedure ${counter}-${Date.now().toString(36)}
-family: ${FAMILY}
-purpose: A procedure made by a test.
-specs: Invented for tests; not service data.
----
-
+const torqueSource = (tool: 'any' | 'preset' = 'any') =>
+	testProcedure(
+		'Torque test procedure',
+		`
 ## Tighten the cover
 
 \`\`\`torque cover-screws
@@ -32,8 +22,8 @@ tolerance: ±10 %
 fasteners: 2
 tool: ${tool}
 \`\`\`
-`;
-}
+`
+	);
 
 const torqueSignoff = (tools: string[], passes: unknown[], setTo?: string[]) => ({
 	stepIndex: 0,
@@ -48,12 +38,7 @@ describe('submit route refusals: torque wrench suitability', () => {
 	});
 	afterAll(() => orm.close(true));
 
-	async function submit(actor: IUser, runId: string, records: unknown[]) {
-		const batch = submitBatchSchema.parse({ records, pins: { [actor.id]: PIN } });
-		const r = await submitRecords(orm.em.fork(), viewer(actor), runId, batch);
-		if (!r.ok) throw new Error(r.message);
-		return r.value.answers;
-	}
+	const submit = (actor: IUser, runId: string, records: unknown[]) => submitAs(orm, actor, runId, records);
 	const readings = [{ '1': { value: '8.1' }, '2': { value: '7.9' } }];
 
 	it('refuses a wrench whose maximum is more than five times the target, and accepts a suitable one', async () => {

@@ -1,51 +1,27 @@
-import type { EntityManager, MikroORM } from '@mikro-orm/postgresql';
+import type { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { verifyChain } from '../../src/lib/ledger/chain';
 import { AdminLog, type IUser } from '../../src/lib/server/db/entities';
 import * as jobs from '../../src/lib/server/repositories/jobs';
 import * as ledger from '../../src/lib/server/repositories/ledger';
-import * as procedures from '../../src/lib/server/repositories/procedures';
-import * as qualifications from '../../src/lib/server/repositories/qualifications';
-import { publishInitial } from '../../src/lib/server/services/procedures.service';
-import { getRun, startRun } from '../../src/lib/server/services/runs.service';
-import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
-import { submitRecords } from '../../src/lib/server/services/submit.service';
+import { getRun } from '../../src/lib/server/services/runs.service';
 import { makePerson } from '../factories/people';
-import { boreAttempt, FAMILY, makeRun, PIN, record } from '../factories/runs';
+import {
+	boreAttempt,
+	makeRun,
+	makeRunOf,
+	PIN,
+	qualify,
+	record,
+	submitWithPins,
+	testProcedureOf,
+	testSteps,
+	viewer
+} from '../factories/runs';
 import { migratedAppOrm } from './support/orm';
 
-const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
-
-let counter = 0;
 /** Step 1 (the bore, 22 mm H7 = 22.000–22.021 mm by ISO 286-2) is critical; step 2 is not. Invented for tests. */
-function criticalSource() {
-	counter += 1;
-	return `---
-title: Critical verification test ${counter}-${Date.now().toString(36)}
-family: ${FAMILY}
-purpose: A procedure made by a test.
-specs: Invented for tests; not service data.
----
-
-## Measure the bore
-
-\`\`\`step
-critical: yes
-\`\`\`
-
-\`\`\`measure bore-1
-feature: bore
-nominal: 22 mm
-tolerance: H7
-\`\`\`
-
-## Check the magnet
-
-\`\`\`confirm magnet-1
-prompt: Magnet is clean.
-\`\`\`
-`;
-}
+const criticalSource = () => testProcedureOf('Critical verification test', testSteps.bore(true), testSteps.magnet);
 
 const magnet = { stepIndex: 1, entries: [{ checkpointId: 'magnet-1', entry: { confirmed: true }, claimed: 'pass' }] };
 
@@ -56,45 +32,15 @@ describe('critical-step verification and completion', () => {
 	});
 	afterAll(() => orm.close(true));
 
-	async function qualify(em: EntityManager, who: IUser, by: IUser) {
-		qualifications.create(em, who, by, {
-			family: FAMILY,
-			trainedBy: by.name,
-			trainedOn: '2026-01-05',
-			expiresOn: null,
-			notes: ''
-		});
-		await em.flush();
-	}
-
 	/** makeRun's people and job, with a run of the critical procedure on that job. */
 	async function criticalRun() {
-		const em = orm.em.fork();
-		const base = await makeRun(em);
-		const published = await publishInitial(em, criticalSource(), {
-			author: viewer(base.lead),
-			approver: viewer(base.lead),
-			changeNote: 'Test version.'
-		});
-		if (!published.ok) throw new Error(published.message);
-		const version = (await procedures.findVersion(em, published.value.id, 1))!;
-		expect(version.model.steps.map((s) => s.critical)).toEqual([true, false]);
-		const run = await startRun(em, viewer(base.lead), {
-			jobId: base.jobId,
-			procedureVersionId: version.id,
-			contentHash: version.contentHash,
-			assignedToId: base.tech.id
-		});
-		if (!run.ok) throw new Error(run.message);
-		const quality = await makePerson(em, { roles: ['quality'], pin: PIN, name: 'Test Quality Lead' });
-		return { ...base, quality, runId: run.value.id };
+		const made = await makeRunOf(orm.em.fork(), criticalSource());
+		expect(made.version.model.steps.map((s) => s.critical)).toEqual([true, false]);
+		return made;
 	}
 
-	async function submit(actor: IUser, runId: string, records: unknown[], pins: Record<string, string>) {
-		const r = await submitRecords(orm.em.fork(), viewer(actor), runId, submitBatchSchema.parse({ records, pins }));
-		if (!r.ok) throw new Error(r.message);
-		return r.value.answers;
-	}
+	const submit = (actor: IUser, runId: string, records: unknown[], pins: Record<string, string>) =>
+		submitWithPins(orm, actor, runId, records, pins);
 	const stored = async (runId: string) => (await ledger.listForRun(orm.em.fork(), runId)).map(ledger.toStored);
 	const stateOf = async (viewerUser: IUser, runId: string) => {
 		const r = await getRun(orm.em.fork(), viewer(viewerUser), runId);
