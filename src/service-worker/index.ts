@@ -8,7 +8,7 @@
  * otherwise. Never `/api/*`, never a POST (see strategy.ts). The offline store (IndexedDB) is the other layer.
  */
 import { build, files, version } from '$service-worker';
-import { mayKeepPage, OFFLINE_FALLBACK, strategyFor } from './strategy';
+import { mayKeepPage, OFFLINE_FALLBACK, pagesToKeep, strategyFor } from './strategy';
 
 const sw = self as unknown as ServiceWorkerGlobalScope;
 const SHELL = `benchstamp-shell-${version}`;
@@ -47,7 +47,7 @@ async function networkFirst(request: Request, pathname: string): Promise<Respons
 		}
 		return response;
 	} catch (e) {
-		const kept = await caches.match(request, { cacheName: PAGES, ignoreSearch: true });
+		const kept = await caches.match(request, { cacheName: PAGES, ignoreSearch: true, ignoreVary: true });
 		if (kept) return kept;
 		const fallback = await caches.match(OFFLINE_FALLBACK, { cacheName: SHELL });
 		if (fallback) return fallback;
@@ -73,4 +73,31 @@ sw.addEventListener('fetch', (event) => {
 	}
 	if (strategy === 'cache-first') event.respondWith(cacheFirst(event.request));
 	else if (strategy === 'network-first') event.respondWith(networkFirst(event.request, url.pathname));
+});
+
+/**
+ * "Keep on this tablet" on the bench: the page asks the worker to fetch runner pages now (with the session cookie)
+ * and keep them, so a run opens offline even if the technician never opened it online. The answer, on the
+ * message's port, lists the pages kept.
+ */
+async function keepPages(urls: string[]): Promise<string[]> {
+	const cache = await caches.open(PAGES);
+	const kept: string[] = [];
+	for (const url of urls) {
+		try {
+			const response = await fetch(url, { credentials: 'same-origin', headers: { accept: 'text/html' } });
+			if (!mayKeepPage(new URL(url).pathname, response.status, response.headers.get('content-type'))) continue;
+			await cache.put(url, response);
+			kept.push(url);
+		} catch {
+			// the server went away meanwhile; the page says which were not kept
+		}
+	}
+	return kept;
+}
+
+sw.addEventListener('message', (event) => {
+	const urls = pagesToKeep(event.data, sw.location.origin);
+	if (urls.length === 0) return;
+	event.waitUntil(keepPages(urls).then((kept) => event.ports[0]?.postMessage({ type: 'kept-pages', kept })));
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { mayKeepPage, strategyFor, type RequestFacts } from './strategy';
+import { mayKeepPage, pagesToKeep, strategyFor, type RequestFacts } from './strategy';
 
 const assets = new Set(['/_app/immutable/entry/start.abc123.js', '/manifest.webmanifest', '/offline.html']);
 const get = (pathname: string, over: Partial<RequestFacts> = {}): RequestFacts => ({
@@ -36,5 +36,26 @@ describe('service worker strategy', () => {
 		['/benchmarks', 200, 'text/html', false]
 	])('keeps %s (%i, %s) for offline: %s', (path, status, type, expected) => {
 		expect(mayKeepPage(path, status, type)).toBe(expected);
+	});
+});
+
+describe('pages a keep-pages message may fetch', () => {
+	const origin = 'https://bench.kestrel.local';
+	it('keeps runner and bench pages of this origin, by path, once each', () => {
+		const urls = ['/runs/0190?x=1', `${origin}/runs/0190#step`, '/bench', '/bench/devices'];
+		expect(pagesToKeep({ type: 'keep-pages', urls }, origin)).toEqual([
+			`${origin}/runs/0190`,
+			`${origin}/bench`,
+			`${origin}/bench/devices`
+		]);
+	});
+	it.each([
+		['another origin', { type: 'keep-pages', urls: ['https://elsewhere.example/runs/0190'] }],
+		['a page that is not kept offline', { type: 'keep-pages', urls: ['/quality/held', '/api/runs/0190/runner'] }],
+		['another message', { type: 'skip-waiting', urls: ['/runs/0190'] }],
+		['no list', { type: 'keep-pages', urls: '/runs/0190' }],
+		['nothing', null]
+	])('%s → nothing', (_what, message) => {
+		expect(pagesToKeep(message, origin)).toEqual([]);
 	});
 });

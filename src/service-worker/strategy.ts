@@ -46,3 +46,32 @@ export function mayKeepPage(pathname: string, status: number, contentType: strin
 		OFFLINE_PAGE_PREFIXES.some((p) => pathname === p || pathname.startsWith(p.endsWith('/') ? p : `${p}/`))
 	);
 }
+
+/** A message from a page asking the worker to fetch and keep pages for offline use (the bench's take-offline). */
+export interface KeepPagesMessage {
+	type: 'keep-pages';
+	urls: string[];
+}
+
+/**
+ * The same-origin page URLs of a keep-pages message the worker may fetch and keep: bench and runner pages only
+ * (anything else, another origin or a malformed message gives nothing). Search and hash are dropped: pages are
+ * kept and looked up by path.
+ */
+export function pagesToKeep(message: unknown, origin: string): string[] {
+	const m = message as Partial<KeepPagesMessage> | null;
+	if (!m || m.type !== 'keep-pages' || !Array.isArray(m.urls)) return [];
+	const out = new Set<string>();
+	for (const raw of m.urls) {
+		if (typeof raw !== 'string') continue;
+		let url: URL;
+		try {
+			url = new URL(raw, origin);
+		} catch {
+			continue;
+		}
+		if (url.origin !== origin || !mayKeepPage(url.pathname, 200, 'text/html')) continue;
+		out.add(url.origin + url.pathname);
+	}
+	return [...out];
+}

@@ -26,6 +26,8 @@ export interface AppServer {
 	start(): Promise<void>;
 	/** SIGTERM and wait for the process to exit: afterwards nothing listens on the port. */
 	stop(): Promise<void>;
+	/** Sends `signal` (a crash: SIGKILL) and waits for the process to exit; `start()` brings it back. */
+	kill(signal: NodeJS.Signals): Promise<void>;
 }
 
 export async function appServer(): Promise<AppServer> {
@@ -73,6 +75,14 @@ export async function appServer(): Promise<AppServer> {
 			const timer = setTimeout(() => c.kill('SIGKILL'), 10_000);
 			await exited;
 			clearTimeout(timer);
+		},
+		async kill(signal) {
+			const c = child;
+			child = undefined;
+			if (!c || c.exitCode !== null || c.signalCode !== null) return;
+			const exited = new Promise<void>((resolve) => c.once('exit', () => resolve()));
+			c.kill(signal);
+			await exited;
 		}
 	};
 	return server;

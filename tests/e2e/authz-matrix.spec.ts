@@ -90,11 +90,13 @@ test.describe('each call as each role', () => {
 				const res =
 					row.call === 'GET'
 						? await ctx.get(path, { maxRedirects: 0 })
-						: await ctx.post(row.call === 'POST ?/default' ? path : `${path}${row.call.slice(5)}`, {
-								form: {},
-								headers: { origin: baseURL!, accept: 'text/html' },
-								maxRedirects: 0
-							});
+						: ['PUT', 'PATCH', 'DELETE'].includes(row.call)
+							? await ctx.fetch(path, { method: row.call, data: '', headers: { origin: baseURL! }, maxRedirects: 0 })
+							: await ctx.post(row.call === 'POST ?/default' ? path : `${path}${row.call.slice(5)}`, {
+									form: {},
+									headers: { origin: baseURL!, accept: 'text/html' },
+									maxRedirects: 0
+								});
 				const got = classify(res);
 				if (!matches(got, want)) wrong.push(`${who}: expected ${want}, got ${got}`);
 			}

@@ -197,6 +197,12 @@ export const MATRIX: MatrixRow[] = [
 		call: 'POST',
 		expect: api({ technician: 'allowed', lead: 'allowed', quality: 'allowed' })
 	},
+	// Photos offline (issue 7): a tablet's photo after its record; who may send records, on their runs — no such run.
+	{
+		route: '/api/runs/[id]/photos/[photoId]',
+		call: 'PUT',
+		expect: api({ technician: 'notfound', lead: 'notfound', quality: 'notfound' })
+	},
 	// The bench runner page: `[id]` is a person's id, so every reader gets 404.
 	{ route: '/runs/[id]', call: 'GET', expect: signedIn({}, 'notfound') },
 	// A lead's decision about a newer version (issue 4): only leads and admins, who then find no such run.

@@ -37,7 +37,7 @@ export type JsonValue = string | number | boolean | null | JsonValue[] | { [key:
 export type StoreKey = (string | number)[];
 
 /** The kinds of object in the store, the first element of every key. */
-export type StoreKind = 'meta' | 'run' | 'entry' | 'outbox' | 'refused' | 'photo' | 'signer' | 'kept';
+export type StoreKind = 'meta' | 'run' | 'entry' | 'outbox' | 'refused' | 'photo' | 'signer' | 'kept' | 'pinlock';
 
 /** Key builders: the one place the key layout is written down. */
 export const KEYS = {
@@ -55,7 +55,9 @@ export const KEYS = {
 	/** {@link import('./offline-pin').OfflineSigner}: a signer's PIN verifier and server grant on this tablet. */
 	signer: (userId: string): StoreKey => ['signer', userId],
 	/** A photo taken on this tablet that no record names yet (see offline-photo.ts); moves to `photo` on enqueue. */
-	kept: (photoId: string): StoreKey => ['kept', photoId]
+	kept: (photoId: string): StoreKey => ['kept', photoId],
+	/** `LockState` of `$lib/signing/pin-lockout`: wrong PINs typed offline for one signer on this tablet. */
+	pinLock: (userId: string): StoreKey => ['pinlock', userId]
 } as const;
 
 /** One image of a pinned procedure version; `blob` is absent until it has been fetched onto the tablet. */

@@ -36,6 +36,10 @@ export interface OutboxRecord extends RecordDraft {
 	signedAt: number;
 	/** The device's signature over the canonical record, once enrolled tablets exist. */
 	signature?: { deviceId: string; value: string };
+	/** Signed while the server could not be reached: the PIN was checked on the tablet against its verifier. */
+	signedOffline?: boolean;
+	/** The signer's sealed offline grant (offline records only); the server checks it on sync. */
+	offlineGrant?: string;
 }
 
 /** A record waiting in the outbox. */
@@ -170,6 +174,35 @@ export async function enqueue(store: OfflineStore, record: OutboxRecord, options
 			tx.put(KEYS.run(record.runId), options.updateRun(run));
 		}
 		return item;
+	});
+}
+
+/**
+ * Queues the photos of a record the server has ALREADY stored (it went online, but its photos were taken while the
+ * server was unreachable and are only on this tablet): they may upload at once, after their record as always.
+ * One transaction; the sequence numbers continue the outbox's.
+ */
+export async function queuePhotosOfStoredRecord(
+	store: OfflineStore,
+	record: Pick<OutboxRecord, 'id' | 'runId'>,
+	photos: PhotoInput[],
+	now: number
+): Promise<PhotoItem[]> {
+	if (photos.length === 0) return [];
+	return store.transact('readwrite', async (tx) => {
+		let seq = (await tx.get<number>(KEYS.seq())) ?? 0;
+		const queued = photos.map((photo): PhotoItem => ({
+			...photo,
+			seq: ++seq,
+			recordId: record.id,
+			runId: record.runId,
+			enqueuedAt: now,
+			attempts: 0,
+			recordStoredAt: now
+		}));
+		for (const q of queued) tx.put(KEYS.photo(q.seq), q);
+		tx.put(KEYS.seq(), seq);
+		return queued;
 	});
 }
 
@@ -317,6 +350,20 @@ export async function applyAnswers(
 			}
 		}
 		return done;
+	});
+}
+
+/**
+ * "Dealt with": someone has read a refused record's reason and taken it up (the server holds a copy for the
+ * quality lead), so the tablet stops listing it. Its photos still on the tablet go with it. Returns false when no
+ * such refused record was here.
+ */
+export async function clearRefused(store: OfflineStore, recordId: string): Promise<boolean> {
+	return store.transact('readwrite', async (tx) => {
+		if (!(await tx.get<RefusedItem>(KEYS.refused(recordId)))) return false;
+		tx.del(KEYS.refused(recordId));
+		for (const [key, photo] of await tx.range<PhotoItem>(['photo'])) if (photo.recordId === recordId) tx.del(key);
+		return true;
 	});
 }
 

@@ -8,6 +8,49 @@ export interface RecordAnswer {
 	reason?: string;
 	seq?: number;
 	findings?: string[];
+	/** On an accepted record from an enrolled tablet: what lets this signer sign offline here for 12 h. */
+	offlineGrant?: { grant: string; issuedAt: number };
+}
+
+/** The record kinds the runner sends. */
+export type RunnerKind =
+	'attempt' | 'signoff' | 'finding' | 'verification' | 'na_approval' | 'handover' | 'supersession';
+
+/** How long the runner waits for the submit route before it treats the server as unreachable (a dead Wi-Fi hangs). */
+export const SUBMIT_TIMEOUT_MS = 15_000;
+
+/** The server's verdict, or `unreachable` when no answer came (network error, timeout, a gateway's 502/503/504). */
+export type SendOutcome = { reached: true; answer: RecordAnswer } | { reached: false };
+
+/** Sends one signed record with its signer's PIN; tells a refusal by the server from a server it could not reach. */
+export async function sendRecord(
+	record: { id: string; runId: string; signer: { id: string } },
+	pin: string,
+	fetchFn: typeof fetch = fetch,
+	timeoutMs = SUBMIT_TIMEOUT_MS
+): Promise<SendOutcome> {
+	let res: Response;
+	try {
+		res = await fetchFn(`/api/runs/${record.runId}/records`, {
+			method: 'POST',
+			headers: { 'content-type': 'application/json' },
+			body: JSON.stringify({ records: [record], pins: { [record.signer.id]: pin } }),
+			signal: AbortSignal.timeout(timeoutMs)
+		});
+	} catch {
+		return { reached: false };
+	}
+	if ([502, 503, 504].includes(res.status)) return { reached: false };
+	if (!res.ok) {
+		const text = ((await res.json().catch(() => null)) as { message?: string } | null)?.message;
+		return {
+			reached: true,
+			answer: { id: record.id, status: 'refused', reason: text ?? `The server answered ${res.status}.` }
+		};
+	}
+	const answers = ((await res.json().catch(() => null)) as { answers?: RecordAnswer[] } | null)?.answers;
+	if (!answers?.[0]) return { reached: false };
+	return { reached: true, answer: answers[0] };
 }
 
 const DEVICE_KEY = 'benchstamp.deviceId';
@@ -25,7 +68,7 @@ export function deviceId(): string {
 /** Sends one record signed by `signer` with their PIN; answers the server's verdict, or a refusal in words. */
 export async function submitOne(
 	runId: string,
-	kind: 'attempt' | 'signoff' | 'finding' | 'verification' | 'na_approval' | 'handover' | 'supersession',
+	kind: RunnerKind,
 	body: Record<string, unknown>,
 	signer: { id: string; role: string },
 	pin: string
@@ -33,18 +76,8 @@ export async function submitOne(
 	const id = uuidv7();
 	// An enrolled tablet signs with its device key (and sends its enrolled id); any other browser sends it unsigned.
 	const record = await signIfEnrolled({ id, runId, kind, body, signer, deviceId: deviceId(), signedAt: Date.now() });
-	try {
-		const res = await fetch(`/api/runs/${runId}/records`, {
-			method: 'POST',
-			headers: { 'content-type': 'application/json' },
-			body: JSON.stringify({ records: [record], pins: { [signer.id]: pin } })
-		});
-		if (!res.ok) {
-			const text = ((await res.json().catch(() => null)) as { message?: string } | null)?.message;
-			return { id, status: 'refused', reason: text ?? `The server answered ${res.status}.` };
-		}
-		return ((await res.json()) as { answers: RecordAnswer[] }).answers[0];
-	} catch {
-		return { id, status: 'refused', reason: 'The server could not be reached; nothing was stored.' };
-	}
+	const sent = await sendRecord(record, pin);
+	return sent.reached
+		? sent.answer
+		: { id, status: 'refused', reason: 'The server could not be reached; nothing was stored.' };
 }

@@ -5,11 +5,17 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import * as images from '../repositories/images';
 import * as runs from '../repositories/runs';
+import { entryContext, type EntryContext } from './run-entry-context';
+import { runRecordsView, type RunRecordsView } from './run-records-view';
 import { runnerView, type RunnerView } from './runner.service';
-import { SUBMIT_ROLES, type Result, type Viewer } from './runs.service';
+import { maySee, SUBMIT_ROLES, type Result, type Viewer } from './runs.service';
 
 export interface OfflineRunnerView extends RunnerView {
 	canSign: boolean;
+	/** R1: the lots and wrenches checkpoint entry offers (what the runner page's server load used to add). */
+	entryContext: EntryContext;
+	/** R2: handover note, leads and workers for N/A, handover, corrections and unlock. */
+	records: RunRecordsView;
 	source: string;
 	images: { id: string; sha256: string }[];
 	/** Server clock when the view was made (ms): the tablet measures its offset from it. */
@@ -39,9 +45,20 @@ export async function offlineRunner(
 		value: {
 			...view.value,
 			canSign: SUBMIT_ROLES.some((r) => viewer.roles.includes(r)) && !moved,
+			entryContext: await entryContext(em, view.value.model),
+			records: await runRecordsView(em, view.value.run),
 			source: version.source,
 			images: pictures,
 			serverTime: Date.now()
 		}
 	};
+}
+
+/**
+ * The runner page's own check (the page renders from the tablet's store, so its server load only decides who gets
+ * the page at all): the run exists and the viewer may see it. One row read, no records.
+ */
+export async function mayOpenRun(em: EntityManager, viewer: Viewer, runId: string): Promise<boolean> {
+	const run = await runs.findById(em, runId);
+	return run !== null && run !== undefined && (await maySee(em, viewer, run));
 }

@@ -6,7 +6,6 @@
  * Request shape (see runs.schema.ts): `{ records: Submission[], pins?: { [signerId]: pin } }`. The PIN is checked
  * with argon2 (`verifyPin`) under the `$lib/signing` lockout policy per signer per device, and never stored.
  */
-import { createHash } from 'node:crypto';
 import { DriverException, UniqueConstraintViolationException } from '@mikro-orm/core';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { evaluate, type Evaluation, type TorqueToolContext } from '../../checks/evaluate';
@@ -23,6 +22,7 @@ import { ENGINE_VERSION } from '../../procedure/version';
 import { TOOL_STATUS_TEXT } from '../../registers/tool-status';
 import { attemptsLeft, isLocked, lockRemainingMs, recordFailure, recordSuccess } from '../../signing/pin-lockout';
 import type { ILedgerRecord, IProcedureVersion, IRun, IUser } from '../db/entities';
+import { serverRecordHash, sha256Hex as sha256 } from '../ledger-hash';
 import * as adminLog from '../repositories/admin-log';
 import * as ledger from '../repositories/ledger';
 import * as pinLocks from '../repositories/pin-locks';
@@ -41,6 +41,8 @@ import { withRecordPhotos } from './run-photos';
 import { priorEntries } from './run-prior-entries';
 import { notifyAwaitingReview } from './quality-mail.service';
 import { grantFor, offlineRefusal, type OfflineGrantAnswer } from './offline-signing';
+import { clientConflictRefusal, CONFLICT_KINDS, conflictFor, heldConflict } from './run-conflicts';
+import { holdRefusal } from './held-refusals';
 import {
 	entriesBodySchema,
 	findingBodySchema,
@@ -93,7 +95,6 @@ const AFTER_REVIEW_KINDS: readonly RecordKind[] = ['finding'];
 const refused = (id: string, reason: string): RecordAnswer => ({ id, status: 'refused', reason });
 /** Ids PostgreSQL takes as a uuid (others cannot be stored, so need no duplicate look-up). */
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex');
 /** What is hashed is what PostgreSQL gives back: plain JSON, `undefined` members gone. */
 const plain = <T>(v: T): JsonValue => JSON.parse(JSON.stringify(v)) as JsonValue;
 
@@ -398,15 +399,20 @@ export async function submitRecords(
 	};
 	const seen = seenOf(run);
 	const answers: RecordAnswer[] = [];
+	// One fork for the checks of the whole batch, emptied before each record: every record starts from a clear
+	// identity map (fresh reads, nothing carried over), without building a new entity manager per record.
+	const fork = em.fork({ clear: true });
 	for (const [i, raw] of batch.records.entries()) {
-		const fork = em.fork({ clear: true });
+		fork.clear();
 		// R1: photos a record names are checked against storage and their sha256 written by the server.
 		const prepared = await withRecordPhotos(
 			fork,
 			await prepare(fork, raw, i, run, version, batch.pins, pinResults, clock, cache)
 		);
-		const answer =
+		const decided =
 			prepared.kind === 'answer' ? prepared.answer : await append(em, runId, version.model, prepared, clock, seen);
+		// Offline issue: a refused offline record, one sent after release or a held clash goes to the held queue.
+		const answer = await holdRefusal(em, runId, raw, decided);
 		// A resend of this record later in the same batch is answered as a duplicate up front.
 		if (prepared.kind === 'append' && answer.status === 'accepted' && answer.seq !== undefined && answer.hash)
 			cache.known.set(answer.id, {
@@ -444,6 +450,8 @@ async function prepare(
 		return answer(refused(s.id, 'body: a record body is a JSON object.'));
 	const reserved = SERVER_BODY_KEYS.find((k) => k in (s.body as object));
 	if (reserved) return answer(refused(s.id, `body.${reserved} is written by the server, not sent.`));
+	const clashKey = clientConflictRefusal(s.body); // run-conflicts.ts: conflictsWith is the server's
+	if (clashKey) return answer(refused(s.id, clashKey));
 	const fp = fingerprint(s);
 	const known = knownAnswer(cache.known.get(s.id), s.id, fp, run.id);
 	if (known) return answer(known);
@@ -520,7 +528,7 @@ export function appendServerRecord(
 	serverTime: Date
 ): StoredRecord {
 	const head = run.headHash ? { runId: run.id, seq: run.recordCount, hash: run.headHash } : null;
-	const stored = appendTo(head, { id: uuidv7(), runId: run.id, kind, body });
+	const stored = appendTo(head, { id: uuidv7(), runId: run.id, kind, body }, serverRecordHash);
 	ledger.insert(tx, run, stored, {
 		submissionHash: sha256(canonicalize(body)),
 		signerId: null,
@@ -584,10 +592,11 @@ async function appendFast(
 ): Promise<RecordAnswer | null> {
 	const { s } = p;
 	if (!MOVE_CHECKED_ON_INSERT.includes(s.kind) || p.overruled.length > 0 || seen.state !== 'in_progress') return null;
+	if (CONFLICT_KINDS.includes(s.kind)) return null; // run-conflicts.ts reads the chain under the lock
 	if (await lateRecordRefusal(em, { state: seen.state, reworkSteps: seen.reworkSteps } as IRun, s)) return null;
 	const serverTime = clock();
 	const head = seen.headHash ? { runId, seq: seen.recordCount, hash: seen.headHash } : null;
-	const stored = appendTo(head, { id: s.id, runId, kind: s.kind, body: recordBody(p, serverTime) });
+	const stored = appendTo(head, { id: s.id, runId, kind: s.kind, body: recordBody(p, serverTime) }, serverRecordHash);
 	try {
 		if (!(await ledger.lockAndAppendIfHead(em, stored, recordColumns(p, serverTime), seen, moveDecision(runId))))
 			return null;
@@ -656,12 +665,16 @@ async function append(
 				const why = verificationRefusal(currentRecords(earlier), s, p.signer);
 				if (why) return refuse(why);
 			}
+			// Offline issue: the same step signed on two tablets is superseded or held, never silent (run-conflicts.ts).
+			const clash = conflictFor(earlier, s, p.signer);
+			if (clash.kind === 'hold') return heldConflict(await refuse(clash.reason));
+			if (clash.kind === 'supersede') Object.assign(p.extra, clash.extra);
 			const stateBefore = run.state;
 			const serverTime = clock();
 			const body = recordBody(p, serverTime);
 			const head = run.headHash ? { runId, seq: run.recordCount, hash: run.headHash } : null;
 			const draft: RecordDraft = { id: s.id, runId, kind: s.kind, body };
-			const stored = appendTo(head, draft);
+			const stored = appendTo(head, draft, serverRecordHash);
 			// One statement for the record and the run's head, outside the unit of work (the hot path).
 			const inserted = await ledger.insertAndAdvance(
 				tx,

@@ -1,23 +1,22 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { z } from 'zod';
-import { hasAnyRole, requireRole } from '$lib/server/access';
-import { runnerView } from '$lib/server/services/runner.service';
-import { entryContext } from '$lib/server/services/run-entry-context';
-import { runRecordsView } from '$lib/server/services/run-records-view';
+import { requireRole } from '$lib/server/access';
+import { mayOpenRun } from '$lib/server/services/offline.service';
 import { DECIDE_ROLES, decideVersion } from '$lib/server/services/run-versions.service';
-import { READ_ROLES, SUBMIT_ROLES } from '$lib/server/services/runs.service';
+import { READ_ROLES } from '$lib/server/services/runs.service';
 import type { RequestEvent } from './$types';
 
-/** The bench runner: technicians their own runs (assigned or signed in), leads and quality all, admins read. */
+/**
+ * The bench runner: technicians their own runs (assigned or signed in), leads and quality all, admins read. The
+ * page renders from the tablet's offline store (`openRun`, filled from `GET /api/runs/:id/runner`), so this load
+ * only decides who gets the page: the same readers as that route, anyone else "not found". The HTML it answers is
+ * what the service worker keeps for offline use, with this small payload inside it.
+ */
 export const load = async (event) => {
 	const user = requireRole(event, ...READ_ROLES);
 	const id = z.uuid().safeParse(event.params.id);
-	const view = id.success ? await runnerView(event.locals.em, user, id.data) : undefined;
-	if (!view?.ok) error(404, 'No such run.');
-	const moved = view.value.versionNotice?.decision?.decision === 'move';
-	const entry = await entryContext(event.locals.em, view.value.model); // R1: lots and wrenches for checkpoint entry
-	const records = await runRecordsView(event.locals.em, view.value.run); // R2: N/A, handover, corrections, unlock
-	return { ...view.value, canSign: hasAnyRole(user, SUBMIT_ROLES) && !moved, entryContext: entry, records };
+	if (!id.success || !(await mayOpenRun(event.locals.em, user, id.data))) error(404, 'No such run.');
+	return { runId: id.data };
 };
 
 const decisionSchema = z.object({ toVersionId: z.uuid('Reload the run: the version to decide about is missing.') });
