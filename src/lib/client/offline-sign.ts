@@ -25,7 +25,7 @@ import { KEYS, type EntryInProgress, type OfflineStore } from './offline-store';
 import { checkOfflinePin, rememberSigner } from './offline-pin';
 import { enqueue, queuePhotosOfStoredRecord, type OutboxRecord, type PhotoInput } from './outbox';
 
-/** The photo side of the tablet (engineer B's offline-photo.ts), injected so this module stays testable. */
+/** The photo side of the tablet (offline-photo.ts), injected so this module stays testable. */
 export interface TabletPhotos {
 	/** Which of the named photo ids were taken while the server was unreachable and are kept on this tablet. */
 	kept(store: OfflineStore, ids: string[]): Promise<PhotoInput[]>;
@@ -100,7 +100,7 @@ export async function signOnTablet(deps: SignDeps, req: SignRequest): Promise<Si
 	const signedAt = now();
 	const ids = photoIdsOf(req.body);
 	const kept = ids.length > 0 && deps.photos ? await deps.photos.kept(store, ids) : [];
-	// B's server check: a record naming photos still on this tablet says so at the top of its body.
+	// The server's photo check: a record naming photos still on this tablet says so at the top of its body.
 	const body = kept.length
 		? { tabletPhotos: kept.map((p) => ({ id: p.id, sha256: p.sha256 })), ...req.body }
 		: req.body;

@@ -13,7 +13,7 @@ export const AREA_ROLES: { prefix: string; roles: RoleName[] }[] = [
 	{ prefix: '/quality', roles: ['quality'] },
 	// Verifying the whole ledger (issue 8): quality leads and admins.
 	{ prefix: '/api/ledger', roles: ['quality', 'admin'] },
-	// Exports of the run record (issue 8, Q3): quality leads only; the customer's record is public behind its token.
+	// Exports of the run record (issue 8): quality leads only; the customer's record is public behind its token.
 	{ prefix: '/api/exports', roles: ['quality'] },
 	{ prefix: '/library', roles: ['technician', 'lead', 'quality', 'admin'] },
 	{ prefix: '/bench', roles: ['technician', 'lead'] },
@@ -21,11 +21,11 @@ export const AREA_ROLES: { prefix: string; roles: RoleName[] }[] = [
 	{ prefix: '/api/devices', roles: ['lead', 'quality', 'admin'] },
 	// The held-records queue (offline issue, O): quality leads.
 	{ prefix: '/api/audit/held', roles: ['quality'] },
-	// Findings, dispositions and release (issue 8, Q1): quality leads only.
+	// Findings, dispositions and release (issue 8): quality leads only.
 	{ prefix: '/api/findings', roles: ['quality'] },
 	{ prefix: '/api/audit/runs', roles: ['quality'] },
 	{ prefix: '/api/audit/jobs', roles: ['quality'] },
-	// Search across runs (`/api/audit/runs`, above), suspect tool and trends (issue 8, Q2): quality leads only.
+	// Search across runs (`/api/audit/runs`, above), suspect tool and trends (issue 8): quality leads only.
 	{ prefix: '/api/audit/suspect-tool', roles: ['quality'] },
 	{ prefix: '/api/audit/trends', roles: ['quality'] },
 	// Registers (issue 5): everyone reads jobs and tools; parts and training are for leads, quality and admins.

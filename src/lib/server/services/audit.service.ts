@@ -271,7 +271,7 @@ export interface RunRecordRow {
 	text: string | null;
 	entries: RecordEntry[];
 	tools: RecordTool[];
-	/** R2: a correction names the record it supersedes, and why. */
+	/** a correction names the record it supersedes, and why. */
 	supersedes?: { id: string; reason: string } | null;
 	/** Offline issue: the tablet it was signed on, and the sign-off of the same step on another tablet it superseded. */
 	deviceId?: string | null;

@@ -12,9 +12,9 @@ import { maySee, SUBMIT_ROLES, type Result, type Viewer } from './runs.service';
 
 export interface OfflineRunnerView extends RunnerView {
 	canSign: boolean;
-	/** R1: the lots and wrenches checkpoint entry offers (what the runner page's server load used to add). */
+	/** the lots and wrenches checkpoint entry offers (what the runner page's server load used to add). */
 	entryContext: EntryContext;
-	/** R2: handover note, leads and workers for N/A, handover, corrections and unlock. */
+	/** handover note, leads and workers for N/A, handover, corrections and unlock. */
 	records: RunRecordsView;
 	source: string;
 	images: { id: string; sha256: string }[];

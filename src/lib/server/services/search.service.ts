@@ -1,5 +1,5 @@
 /**
- * The quality lead's questions across runs (issue 8, Q2): search by signer, procedure and version, dates, findings,
+ * The quality lead's questions across runs (issue 8): search by signer, procedure and version, dates, findings,
  * unit serial and part lot/serial ("which units received lot X"), and the suspect-tool list ("what did wrench T sign
  * since it was last known good"). Routes check the role; this parses nothing itself but owns the query schemas.
  */

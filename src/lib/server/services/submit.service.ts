@@ -269,7 +269,7 @@ async function checkEntries(
 
 	const all = checkpointsOf(model);
 	const entries = {
-		...(await priorEntries(em, s.runId, step)), // R1: a clearance reads measures signed on earlier steps
+		...(await priorEntries(em, s.runId, step)), // a clearance reads measures signed on earlier steps
 		...Object.fromEntries(body.entries.map((e) => [e.checkpointId, e.entry]))
 	};
 	const evaluation: JsonValue[] = [];
@@ -404,7 +404,7 @@ export async function submitRecords(
 	const fork = em.fork({ clear: true });
 	for (const [i, raw] of batch.records.entries()) {
 		fork.clear();
-		// R1: photos a record names are checked against storage and their sha256 written by the server.
+		// photos a record names are checked against storage and their sha256 written by the server.
 		const prepared = await withRecordPhotos(
 			fork,
 			await prepare(fork, raw, i, run, version, batch.pins, pinResults, clock, cache)
@@ -482,7 +482,7 @@ async function prepare(
 		if (grant) cache.grants.set(s.id, grant);
 	}
 
-	// R2: not-applicable approvals, handovers and corrections (run-records.ts).
+	// not-applicable approvals, handovers and corrections (run-records.ts).
 	if ((r2.R2_KINDS as readonly string[]).includes(s.kind)) {
 		const r = await r2.prepareRecord(em, s, signer, version.model);
 		if (!r.ok) return answer(refused(s.id, r.reason));
@@ -639,7 +639,7 @@ async function append(
 			// The duplicate check ran up front for the whole batch; a resend that raced in since is caught here before
 			// any refusal (rare), and before an accept by the primary key (the UniqueConstraintViolation path below).
 			const refuse = async (why: string) => (await duplicateOrReused(tx, s.id, p.fp, runId)) ?? refused(s.id, why);
-			// Q1: a released run takes no record; a rework run takes records on its rework steps only.
+			// a released run takes no record; a rework run takes records on its rework steps only.
 			const late = await lateRecordRefusal(tx, run, s);
 			if (late) return refuse(late);
 			if (run.state === 'awaiting_review' && !AFTER_REVIEW_KINDS.includes(s.kind))
@@ -705,7 +705,7 @@ async function append(
 				findings.push(finding.id);
 			}
 			r2.afterAppend(tx, run, s, p.signer);
-			// R2: completion counts current sign-offs and N/A steps (a correction voids what it supersedes).
+			// completion counts current sign-offs and N/A steps (a correction voids what it supersedes).
 			const done = completionRecords([...earlier, { id: s.id, kind: s.kind, body: s.body }]);
 			if (completing && run.state !== 'awaiting_review' && isComplete(model, done, run)) {
 				run.state = 'awaiting_review';
@@ -725,7 +725,7 @@ async function append(
 			const answer: RecordAnswer = { id: s.id, status: 'accepted', seq: stored.seq, hash: stored.hash };
 			return findings.length ? { ...answer, findings } : answer;
 		});
-		// Q3: mail the quality leads only once the transaction has committed; a failed send never fails the record.
+		// mail the quality leads only once the transaction has committed; a failed send never fails the record.
 		if (reachedReview) notifyAwaitingReview(em.fork({ clear: true }), runId);
 		return result;
 	} catch (e) {

@@ -1,5 +1,5 @@
 /**
- * Trends for the quality lead (issue 8, Q2): every signed reading of one measure checkpoint across all runs of a
+ * Trends for the quality lead (issue 8): every signed reading of one measure checkpoint across all runs of a
  * procedure against its limits, with the mean and the performance indices Pp/Ppk (`$lib/stats/capability`); the
  * actual time per step against the procedure's `minutes`; and finding and comeback rates per procedure version.
  * All figures come from the ledger bodies as the server stored them (its own evaluation, its own time).

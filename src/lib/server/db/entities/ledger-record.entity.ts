@@ -18,7 +18,7 @@ export const LedgerRecord = defineEntity({
 		{ properties: ['run', 'seq'], name: 'ledger_record_run_seq_unique' },
 		{ properties: ['run', 'prevHash'], name: 'ledger_record_run_prev_hash_unique' }
 	],
-	// Audit search (issue 8, Q2): records by signer and time, and `body @> …` containment for lot trace and suspect tool.
+	// Audit search (issue 8): records by signer and time, and `body @> …` containment for lot trace and suspect tool.
 	indexes: [
 		{ properties: ['signerId', 'serverTime'], name: 'ledger_record_signer_time_index' },
 		{ properties: ['serverTime'], name: 'ledger_record_server_time_index' },
