@@ -7,10 +7,10 @@
  * - {@link openRun} refreshes when it can (short timeout) and falls back to the stored copy; records signed on this
  *   tablet and still in the outbox are laid over the view so the steps show as signed.
  */
-import { contentHash } from '$lib/procedure';
+import { contentHash } from '$lib/procedure/hash';
 import type { OfflineRunnerView } from '$lib/server/services/offline.service';
 import { getRun, KEYS, saveRun, type OfflineImage, type OfflineRun, type OfflineStore } from './offline-store';
-import type { OutboxItem } from './outbox';
+import type { OutboxItem, RefusedItem } from './outbox';
 
 export type FetchLike = (input: string, init?: RequestInit) => Promise<Response>;
 
@@ -96,6 +96,8 @@ export interface OpenedRun {
 	stored: OfflineRun;
 	/** Records signed here that the server has not answered yet (drawn as signed, marked waiting). */
 	pending: OutboxItem['record'][];
+	/** Records of this run the server refused at sync, with the reason, until someone marks them dealt with. */
+	refused: RefusedItem[];
 }
 
 /** Opens a run: refreshed from the server when it answers in time, else the stored copy; throws NotOnThisTablet. */
@@ -118,7 +120,10 @@ export async function openRun(
 	const outbox = await store.transact('readonly', (tx) => tx.range<OutboxItem>(['outbox']));
 	const known = new Set(stored.view.run.records.map((r) => r.id));
 	const pending = outbox.map(([, item]) => item.record).filter((r) => r.runId === runId && !known.has(r.id));
-	return { view: stored.view, origin, stored, pending };
+	const refused = (await store.transact('readonly', (tx) => tx.range<RefusedItem>(['refused'])))
+		.map(([, item]) => item)
+		.filter((item) => item.record.runId === runId);
+	return { view: stored.view, origin, stored, pending, refused };
 }
 
 /** Step HTML with stored pictures swapped in as blob URLs (CSP allows `blob:` images); call `revoke` when done. */

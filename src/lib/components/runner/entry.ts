@@ -3,7 +3,9 @@
  * $lib/checks/evaluate). Keypad readings are "slots" (a bore position, a fastener in a pass, a fill amount); flags
  * are the one-tap answers (confirmed, zeroed, an option, a fluid level).
  */
-import { evaluate, type Evaluation, type TorqueToolContext } from '$lib/checks/evaluate';
+import type { Evaluation } from '$lib/checks/judge';
+import type { TorqueToolContext } from '$lib/checks/entry-schemas';
+import { evaluateOnTablet } from '$lib/checks/evaluate-on-tablet';
 import { currentRecords } from '$lib/ledger/step-state';
 import { unitById } from '$lib/checks/units';
 import type { Checkpoint } from '$lib/procedure/model';
@@ -268,7 +270,11 @@ export function signedEvaluation(
 	if (signed.evaluation) return signed.evaluation;
 	if (cp.kind !== 'torque') return fallback;
 	const wrench = chosenWrench(signed.tools, torqueTools);
-	return evaluate(cp, signed.entry, wrench ? { tool: signed.setTo ? { ...wrench, setTo: signed.setTo } : wrench } : {});
+	return evaluateOnTablet(
+		cp,
+		signed.entry,
+		wrench ? { tool: signed.setTo ? { ...wrench, setTo: signed.setTo } : wrench } : {}
+	);
 }
 
 type Obj = Record<string, unknown>;
