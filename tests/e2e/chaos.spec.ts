@@ -7,6 +7,8 @@
  * Invented procedure of quick confirm steps, not service data.
  */
 import { expect, test, type Browser, type Page } from '@playwright/test';
+// The app's own seeded generator (mulberry32, the same sequence per seed as the copy this test had).
+import { seededRandom } from '../../src/lib/client/backoff';
 import { appServer, type AppServer } from './app-server';
 import { FAMILY, PORTRAIT, publishAndStart, stamp } from './runner-support';
 import { DEMO, ownerQuery, signIn } from './support';
@@ -24,18 +26,6 @@ purpose: Many quick steps signed on three tablets while their network comes and 
 specs: Invented for a test; not service data.
 ---
 ${Array.from({ length: STEPS }, (_, i) => `\n## Check item ${i + 1}\n\n\`\`\`confirm c${i + 1}\nprompt: Item ${i + 1} checked.\n\`\`\`\n`).join('')}`;
-
-/** mulberry32: a small seeded generator, so every run of the test makes the same choices. */
-function seeded(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 // A step that cannot happen fails within seconds instead of waiting out the whole test.
 test.use({ actionTimeout: 20_000, navigationTimeout: 45_000 });
@@ -182,9 +172,9 @@ test('chaos: three tablets sign 200 records while their networks drop at random;
 
 		// Then the three shifts at once, each with its own seeded dice.
 		await Promise.all([
-			shift(a, 2, QUOTA.A - 1, seeded(202612021)),
-			shift(b, 2, QUOTA.B - 1, seeded(202612022)),
-			shift(c, 2, QUOTA.C, seeded(202612023))
+			shift(a, 2, QUOTA.A - 1, seededRandom(202612021)),
+			shift(b, 2, QUOTA.B - 1, seededRandom(202612022)),
+			shift(c, 2, QUOTA.C, seededRandom(202612023))
 		]);
 		const logged = tablets.flatMap((t) => t.signed);
 		expect(logged).toHaveLength(200);

@@ -2,7 +2,9 @@
  * Offline acceptance (issue 7): on an enrolled tablet, a run is kept on the tablet, one step is signed online (the
  * tablet gets the signer's offline grant), then the network is cut AT THE SERVER SIDE by stopping the test's own app
  * server; five steps (one with a photo) are signed; the runner reloads from the service worker and the store; a new
- * page still shows them; the server comes back and exactly those records (and the photo) land in PostgreSQL.
+ * page still shows them; two handovers are signed through the lazily loaded panel, still offline; the server comes back
+ * (no online event: the tablet's health probe notices) and exactly those records (and the photo) land in PostgreSQL,
+ * the second handover refused at sync and marked so in the runner.
  * Invented procedure (quick confirm steps and one photo), not service data.
  */
 import { expect, test, type Page, type Response } from '@playwright/test';
@@ -25,6 +27,12 @@ ${steps.map((s, i) => `\n## ${s}\n\n\`\`\`confirm c${i + 1}\nprompt: ${s} done.\
 
 \`\`\`photo pan
 prompt: Photograph the refitted pan.
+\`\`\`
+
+## Top up the fluid
+
+\`\`\`confirm c7
+prompt: Fluid topped up.
 \`\`\`
 `;
 
@@ -102,15 +110,48 @@ test('offline bench: 5 steps and a photo signed with the server stopped survive 
 		await page.goto(`/runs/${runId}`);
 		await expect(page.getByTestId('run-waiting')).toContainText('5');
 		await expect(waiting(page)).toHaveText('5');
+
+		// Record panels sign on the tablet too; their code loads lazily, here from the worker's cache with the server
+		// stopped (step 7 stays open, so the run is still in progress). Two handovers: the first pauses the run at sync, so the server refuses the second (only a run in
+		// progress is handed over) and the runner then marks it refused, in words, until it is dealt with.
+		for (const note of ['Pan torqued; the fluid fill is left.', 'Second note, sent twice by mistake.']) {
+			await page.getByRole('button', { name: 'Hand over (end of shift)' }).click();
+			await page.getByLabel('Handover note for whoever continues').fill(note);
+			await page.getByRole('button', { name: 'Continue to sign' }).click();
+			await signAs(page.getByRole('region', { name: 'Sign the handover' }), TECH, PIN);
+			await expect(page.getByText('Signed on this tablet and waiting to sync')).toBeVisible();
+		}
+		await expect(waiting(page)).toHaveText('7');
 		context.off('response', watch);
 		expect(reachedServer).toEqual([]);
 
-		// The server comes back: "Sync now" sends the five records, then the photo.
+		// The server comes back with the Wi-Fi up all along (no online event): the tablet's health probe notices
+		// within seconds and syncs by itself — the five sign-offs, the handovers, then the photo.
 		await server.start();
-		await page.getByTestId('sync-status').locator('summary').click();
-		await page.getByRole('button', { name: 'Sync now' }).click();
-		await expect(waiting(page)).toHaveText('0', { timeout: 60_000 });
+		await expect(waiting(page)).toHaveText('0', { timeout: 30_000 });
 		await expect(page.getByTestId('run-waiting')).toHaveCount(0); // the runner re-opened from the server
+		const refused = page.getByRole('list', { name: 'Refused at sync' }).getByRole('listitem');
+		await expect(refused.first()).toBeVisible();
+		const refusedTexts = await refused.allTextContents();
+		expect(refusedTexts, refusedTexts.join('\n')).toHaveLength(1);
+		await expect(refused).toContainText('Refused at sync');
+		await expect(refused).toContainText('The handover signed on this tablet by Tomas Reyna was refused');
+		const handovers = await ownerQuery<{ signed_offline: boolean; body: { note: string } }>(
+			`select signed_offline, body from ledger_record where run_id = $1 and kind = 'handover' order by seq`,
+			[runId]
+		);
+		expect(handovers.map((h) => [h.signed_offline, h.body.note])).toEqual([
+			[true, 'Pan torqued; the fluid fill is left.']
+		]);
+		expect(
+			(
+				await ownerQuery(`select 1 from held_record where run_id = $1 and submission->'body'->>'note' like 'Second%'`, [
+					runId
+				])
+			).length
+		).toBe(1);
+		await refused.getByRole('button', { name: 'Dealt with' }).click();
+		await expect(refused).toHaveCount(0);
 		const signoffs = await ownerQuery<{ signed_offline: boolean; body: { tabletPhotos?: { id: string }[] } }>(
 			`select signed_offline, body from ledger_record where run_id = $1 and kind = 'signoff' order by seq`,
 			[runId]

@@ -49,6 +49,10 @@ describe('signing with the network down: grants issued online, offline records a
 		const grant = await online(tech, runId, tablet);
 		expect(grant.grant).toMatch(/^[A-Za-z0-9_-]+\.[A-Za-z0-9_-]+$/);
 		expect(Math.abs(grant.issuedAt - Date.now())).toBeLessThan(60_000);
+		// The credential epoch the tablet compares before it skips re-deriving its PIN verifier: the same while the
+		// account's PIN, roles and password stay the same.
+		expect(grant.epoch).toMatch(/^v\d+\.p\d+$/);
+		expect((await online(tech, runId, tablet)).epoch).toBe(grant.epoch);
 		const [plain] = await submit(tech, runId, [record(runId, tech, 'attempt', boreAttempt('22.010'))], {
 			[tech.id]: PIN
 		});
@@ -102,5 +106,7 @@ describe('signing with the network down: grants issued online, offline records a
 		const [answer] = await submit(tech, runId, [sent]);
 		expect(answer.status).toBe('refused');
 		expect(answer.reason).toMatch(/PIN, roles or password changed/);
+		// A new grant after the PIN change names another epoch, so the tablet derives a new verifier.
+		expect((await online(tech, runId, tablet)).epoch).not.toBe(grant.epoch);
 	});
 });

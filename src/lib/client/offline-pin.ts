@@ -24,9 +24,32 @@ export interface OfflineSigner {
 	grant: string;
 	/** Server time the grant was issued (ms); the tablet's copy, for showing and for the 12-hour check. */
 	issuedAt: number;
+	/** The grant's credential epoch (PIN / roles / account version), when the server sent it. */
+	epoch?: string;
 	salt: string;
 	iterations: number;
 	verifier: string;
+}
+
+/** How old (server clock) a kept grant may be for a new online signature to leave it and its verifier as they are. */
+export const VERIFIER_REUSE_MS = 60 * 60_000;
+
+/**
+ * Whether a new online signature may skip re-deriving the verifier (600,000 PBKDF2 iterations, the cost of every
+ * online record otherwise). Safe only when the kept verifier is certainly of the PIN the server just accepted: the
+ * server's new grant carries the same credential epoch as the kept grant (no PIN, role or account change since),
+ * the kept grant is under an hour old on the server's clock, and the iteration count is the one asked for. The kept
+ * grant then stays too: a new grant is never stored beside an old verifier.
+ */
+export function mayKeepVerifier(
+	kept: Pick<OfflineSigner, 'userId' | 'issuedAt' | 'epoch' | 'iterations'> | undefined,
+	incoming: { userId: string; issuedAt: number; epoch?: string; iterations: number }
+): boolean {
+	if (!kept || kept.userId !== incoming.userId) return false;
+	if (!kept.epoch || !incoming.epoch || kept.epoch !== incoming.epoch) return false;
+	if (kept.iterations !== incoming.iterations) return false;
+	const age = incoming.issuedAt - kept.issuedAt;
+	return age >= 0 && age < VERIFIER_REUSE_MS;
 }
 
 const hex = (b: ArrayBuffer | Uint8Array) =>
@@ -51,18 +74,25 @@ function same(a: string, b: string): boolean {
 	return diff === 0;
 }
 
-/** Keeps a verifier of `pin` after the server accepted it and issued `grant`. */
+/**
+ * Keeps a verifier of `pin` after the server accepted it and issued `grant`; answers false when the kept one still
+ * holds ({@link mayKeepVerifier}) and nothing was derived or written.
+ */
 export async function rememberSigner(
 	store: OfflineStore,
 	signer: { userId: string; name: string },
 	pin: string,
-	grant: { grant: string; issuedAt: number },
+	grant: { grant: string; issuedAt: number; epoch?: string },
 	iterations = PBKDF2_ITERATIONS
-): Promise<void> {
+): Promise<boolean> {
+	const kept = await store.get<OfflineSigner>(KEYS.signer(signer.userId));
+	if (mayKeepVerifier(kept, { userId: signer.userId, issuedAt: grant.issuedAt, epoch: grant.epoch, iterations }))
+		return false;
 	const salt = crypto.getRandomValues(new Uint8Array(16));
 	const verifier = await derive(pin, salt, iterations);
 	const value: OfflineSigner = { ...signer, ...grant, salt: hex(salt), iterations, verifier };
 	await store.set(KEYS.signer(signer.userId), value);
+	return true;
 }
 
 export type OfflinePinCheck =

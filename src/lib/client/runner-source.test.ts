@@ -2,7 +2,7 @@ import 'fake-indexeddb/auto';
 import { describe, expect, it } from 'vitest';
 import { contentHash } from '$lib/procedure';
 import type { OfflineRunnerView } from '$lib/server/services/offline.service';
-import { enqueue } from './outbox';
+import { applyAnswers, clearRefused, enqueue } from './outbox';
 import { getRun, openOfflineStore } from './offline-store';
 import { htmlWithStoredImages, makeAvailable, NotOnThisTablet, openRun, type FetchLike } from './runner-source';
 import { freshDbName, makeRun, recordMaker } from './test-helpers';
@@ -83,6 +83,31 @@ describe('the runner reads from the tablet store', () => {
 		expect(opened.pending.map((r) => r.runId)).toEqual(['run-a']);
 		const online = await openRun(store, server(viewFor('run-a')), 'run-a');
 		expect(online.origin).toBe('server');
+	});
+
+	it('lists the records of the run the server refused at sync, with the reason, until they are dealt with', async () => {
+		const store = await openOfflineStore({ dbName: freshDbName('src') });
+		await makeAvailable(store, server(viewFor('run-a')), 'run-a');
+		const make = recordMaker(4);
+		const mine = make('run-a', 1_000);
+		const other = make('run-other', 1_001);
+		await enqueue(store, mine, { now: 1_000 });
+		await enqueue(store, other, { now: 1_001 });
+		await applyAnswers(
+			store,
+			[
+				{ id: mine.id, status: 'refused', reason: 'Step 1 is already not applicable.' },
+				{ id: other.id, status: 'refused', reason: 'elsewhere' }
+			],
+			{ now: 2_000 }
+		);
+		const opened = await openRun(store, server(null), 'run-a');
+		expect(opened.pending).toEqual([]);
+		expect(opened.refused.map((r) => [r.record.id, r.reason])).toEqual([
+			[mine.id, 'Step 1 is already not applicable.']
+		]);
+		await clearRefused(store, mine.id);
+		expect((await openRun(store, server(null), 'run-a')).refused).toEqual([]);
 	});
 
 	it('says when a run is not on this tablet and the server is down', async () => {

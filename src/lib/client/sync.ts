@@ -7,7 +7,7 @@
  * already at the server. A record may be sent again after a failure whose answer was lost; the server answers
  * `duplicate` for an id it already has, which removes it here like `accepted`.
  */
-import { nextRetryDelay, type Random } from './backoff';
+import { nextRetryDelay, seededRandom, type Random } from './backoff';
 import type { OfflineStore } from './offline-store';
 import {
 	applyAnswers,
@@ -170,8 +170,30 @@ async function uploadPhotos(deps: SyncDeps, result: SyncResult): Promise<void> {
 	}
 }
 
-/** Why a sync ran. `online` and `demand` ignore the retry schedule; `interval`, `retry` and `start` respect it. */
-export type SyncReason = 'start' | 'online' | 'interval' | 'retry' | 'demand';
+/**
+ * Why a sync ran. `online`, `demand`, `probe` (the server answered a health probe) and `visible` (the page came back
+ * into view and the server answered) ignore the retry schedule; `interval`, `retry` and `start` respect it.
+ */
+export type SyncReason = 'start' | 'online' | 'interval' | 'retry' | 'demand' | 'probe' | 'visible';
+
+const FORCED: readonly SyncReason[] = ['online', 'demand', 'probe', 'visible'];
+
+/** Largest wait between health probes while records wait after a failed sync: a few seconds. */
+export const PROBE_CAP_MS = 5_000;
+/** How long a health probe waits for the server. */
+export const PROBE_TIMEOUT_MS = 3_000;
+
+/** A cheap check that the server answers: `GET /api/health` (never answered by the service worker), short timeout. */
+export function healthProbe(fetchFn: typeof fetch = fetch, timeoutMs = PROBE_TIMEOUT_MS): () => Promise<boolean> {
+	return async () => {
+		try {
+			const res = await fetchFn('/api/health', { cache: 'no-store', signal: AbortSignal.timeout(timeoutMs) });
+			return res.ok;
+		} catch {
+			return false;
+		}
+	};
+}
 
 /** Timer functions, injectable for tests. */
 export interface Timers {
@@ -193,6 +215,17 @@ export interface TriggerOptions {
 	now: () => number;
 	/** Called with every result (e.g. to refresh the indicator). */
 	onResult?: (result: SyncResult, reason: SyncReason) => void;
+	/**
+	 * A cheap "does the server answer?" ({@link healthProbe}). The Wi-Fi may stay up while the server is gone, so no
+	 * `online` event comes when it is back: after a failed sync with records waiting, this is polled with the retry
+	 * back-off capped at {@link PROBE_CAP_MS}, and a sync runs as soon as it answers.
+	 */
+	probe?: () => Promise<boolean>;
+	probeCapMs?: number;
+	/** Where `visibilitychange` fires and whether the page is visible now (the document). */
+	visibility?: { target: Pick<EventTarget, 'addEventListener' | 'removeEventListener'>; visible: () => boolean };
+	/** Jitter for the probe delays; default a seeded generator. */
+	random?: Random;
 }
 
 /** The running trigger wiring. */
@@ -217,12 +250,31 @@ const browserTimers: Timers = {
  */
 export function syncOnTriggers(options: TriggerOptions): SyncTriggers {
 	const timers = options.timers ?? browserTimers;
+	const random = options.random ?? seededRandom(Date.now());
 	let retry: unknown;
+	let probeTimer: unknown;
+	let probes = 0;
 	let stopped = false;
+	const stopProbing = () => {
+		if (probeTimer !== undefined) timers.clearTimeout(probeTimer);
+		probeTimer = undefined;
+		probes = 0;
+	};
+	const scheduleProbe = () => {
+		if (stopped || !options.probe || probeTimer !== undefined) return;
+		const delay = Math.min(options.probeCapMs ?? PROBE_CAP_MS, nextRetryDelay(++probes, random));
+		probeTimer = timers.setTimeout(async () => {
+			const up = await options.probe!().catch(() => false);
+			probeTimer = undefined;
+			if (stopped) return;
+			if (up) void run('probe');
+			else scheduleProbe();
+		}, delay);
+	};
 	const run = async (reason: SyncReason): Promise<SyncResult> => {
 		let result: SyncResult;
 		try {
-			result = await options.sync(reason === 'online' || reason === 'demand', reason);
+			result = await options.sync(FORCED.includes(reason), reason);
 		} catch (error) {
 			result = {
 				status: 'failed',
@@ -243,17 +295,33 @@ export function syncOnTriggers(options: TriggerOptions): SyncTriggers {
 				void run('retry');
 			}, delay);
 		}
+		// Records wait and the exchange failed: probe until the server answers. A sync the probe itself started
+		// that still fails (the server answers health but not the batch) leaves it to the retry schedule.
+		const exchangeFailed = result.status === 'failed' || result.status === 'partial';
+		if (exchangeFailed && result.sent + result.photosFailed > 0 && reason !== 'probe') scheduleProbe();
+		else if (result.status === 'done' || reason === 'probe') stopProbing();
 		options.onResult?.(result, reason);
 		return result;
 	};
 	const onOnline = () => void run('online');
 	options.events.addEventListener('online', onOnline);
+	const onVisible = async () => {
+		if (stopped || !options.visibility?.visible()) return;
+		if (!options.probe) return void run('interval');
+		if (await options.probe().catch(() => false)) {
+			stopProbing();
+			if (!stopped) void run('visible');
+		}
+	};
+	options.visibility?.target.addEventListener('visibilitychange', onVisible);
 	const interval = timers.setInterval(() => void run('interval'), options.intervalMs ?? 30_000);
 	void run('start');
 	return {
 		syncNow: () => run('demand'),
 		stop: () => {
 			stopped = true;
+			stopProbing();
+			options.visibility?.target.removeEventListener('visibilitychange', onVisible);
 			options.events.removeEventListener('online', onOnline);
 			timers.clearInterval(interval);
 			if (retry !== undefined) timers.clearTimeout(retry);

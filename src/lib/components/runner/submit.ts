@@ -1,6 +1,5 @@
 /** The runner's side of the one submit route (`POST /api/runs/:id/records`). */
 import { uuidv7 } from '$lib/ledger/uuid-v7';
-import { signIfEnrolled } from '$lib/client/device-key';
 
 export interface RecordAnswer {
 	id: string;
@@ -9,7 +8,7 @@ export interface RecordAnswer {
 	seq?: number;
 	findings?: string[];
 	/** On an accepted record from an enrolled tablet: what lets this signer sign offline here for 12 h. */
-	offlineGrant?: { grant: string; issuedAt: number };
+	offlineGrant?: { grant: string; issuedAt: number; epoch?: string };
 }
 
 /** The record kinds the runner sends. */
@@ -63,21 +62,4 @@ export function deviceId(): string {
 		localStorage.setItem(DEVICE_KEY, id);
 	}
 	return id;
-}
-
-/** Sends one record signed by `signer` with their PIN; answers the server's verdict, or a refusal in words. */
-export async function submitOne(
-	runId: string,
-	kind: RunnerKind,
-	body: Record<string, unknown>,
-	signer: { id: string; role: string },
-	pin: string
-): Promise<RecordAnswer> {
-	const id = uuidv7();
-	// An enrolled tablet signs with its device key (and sends its enrolled id); any other browser sends it unsigned.
-	const record = await signIfEnrolled({ id, runId, kind, body, signer, deviceId: deviceId(), signedAt: Date.now() });
-	const sent = await sendRecord(record, pin);
-	return sent.reached
-		? sent.answer
-		: { id, status: 'refused', reason: 'The server could not be reached; nothing was stored.' };
 }

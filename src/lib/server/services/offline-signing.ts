@@ -16,10 +16,15 @@ import { openGrant, sealGrant } from '../offline-grants';
 import type { DeviceStamp } from './devices-signatures';
 import type { Submission } from './runs.schema';
 
-/** What the tablet keeps after an online signature: the sealed grant and its issue time (server clock, ms). */
+/**
+ * What the tablet keeps after an online signature: the sealed grant, its issue time (server clock, ms), and the
+ * credential epoch sealed in it (`signingState`: session version — roles, deactivation, password — and PIN change
+ * time). The tablet re-derives its slow PIN verifier only when the epoch moved (offline-pin.ts `mayKeepVerifier`).
+ */
 export interface OfflineGrantAnswer {
 	grant: string;
 	issuedAt: number;
+	epoch: string;
 }
 
 const secret = () => env().AUTH_SECRET;
@@ -28,9 +33,11 @@ const secret = () => env().AUTH_SECRET;
 export function grantFor(signer: IUser, stamp: DeviceStamp, now: Date): OfflineGrantAnswer | undefined {
 	if (stamp.status !== 'verified' || !stamp.deviceId) return undefined;
 	const issuedAt = now.getTime();
+	const state = signingState(signer);
 	return {
-		grant: sealGrant(secret(), { userId: signer.id, deviceId: stamp.deviceId, issuedAt, state: signingState(signer) }),
-		issuedAt
+		grant: sealGrant(secret(), { userId: signer.id, deviceId: stamp.deviceId, issuedAt, state }),
+		issuedAt,
+		epoch: state
 	};
 }
 

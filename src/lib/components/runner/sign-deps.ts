@@ -1,5 +1,5 @@
 /** The runner's real dependencies of `signOnTablet`: the submit route, this tablet's device key and kept photos. */
-import { deviceId, sendRecord } from '$lib/components/runner/submit';
+import { deviceId, sendRecord } from './submit';
 import { loadIdentity, signIfEnrolled, signRecord } from '$lib/client/device-key';
 import { dropKept, keptPhotos } from '$lib/client/offline-photo';
 import type { SignDeps } from '$lib/client/offline-sign';
