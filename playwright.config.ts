@@ -50,7 +50,11 @@ export default defineConfig({
 				FAKE_S3_PORT: '0',
 				FAKE_S3_DIR: process.env.E2E_MAIL_DIR ? `${process.env.E2E_MAIL_DIR}-s3` : '.data/e2e-s3',
 				// adapter-node refuses bodies over 512 KB by default; photos are up to 10 MiB plus the form around them.
-				BODY_SIZE_LIMIT: '11M'
+				BODY_SIZE_LIMIT: '11M',
+				// Idle keep-alive seconds (Node's default 5): Playwright's pooled request sockets drop 1 s before the
+				// announced timeout, but a test process starved on 2 cores misses that and reuses a socket the server
+				// just closed (ECONNRESET). Shutdown closes idle connections at once, so this does not slow stopping.
+				KEEP_ALIVE_TIMEOUT: '600'
 			}
 		},
 		{
@@ -72,7 +76,8 @@ export default defineConfig({
 				S3_BUCKET: 'benchstamp-e2e',
 				S3_ACCESS_KEY_ID: 'e2e-unused',
 				S3_SECRET_ACCESS_KEY: 'e2e-unused',
-				BODY_SIZE_LIMIT: '11M'
+				BODY_SIZE_LIMIT: '11M',
+				KEEP_ALIVE_TIMEOUT: '600'
 			}
 		}
 	]

@@ -47,7 +47,9 @@ export async function appServer(): Promise<AppServer> {
 		FAKE_SMTP_PORT: String(smtpPort),
 		FAKE_S3_PORT: '0',
 		FAKE_S3_DIR: process.env.E2E_MAIL_DIR ? `${process.env.E2E_MAIL_DIR}-s3` : '.data/e2e-s3',
-		BODY_SIZE_LIMIT: '11M'
+		BODY_SIZE_LIMIT: '11M',
+		// As playwright.config.ts: no keep-alive race between a starved test process and the server's 5 s default.
+		KEEP_ALIVE_TIMEOUT: '600'
 	};
 	const server: AppServer = {
 		url,

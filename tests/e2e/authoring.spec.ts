@@ -27,6 +27,15 @@ async function asPerson(browser: Browser, email: string, password = DEMO_PASSWOR
 	return page;
 }
 
+/** The demo lead writes a new procedure from the library: their page, on the new draft's editor, and its source. */
+async function newDraft(browser: Browser) {
+	const lead = await asPerson(browser, DEMO.lead.email);
+	await lead.goto('/library');
+	await lead.getByRole('button', { name: 'Write a procedure' }).click();
+	await expect(lead).toHaveURL(/\/edit$/);
+	return { lead, source: lead.getByLabel('Procedure source (Markdown)') };
+}
+
 async function insertForm(page: Page, kind: string, fields: Record<string, string>) {
 	await page.getByLabel('Insert a checkpoint').selectOption({ label: kind });
 	const form = page.getByRole('form', { name: /Insert a/ });
@@ -256,11 +265,7 @@ test('bad input: an oversized document and a binary import get a clear message a
 test('the fluid form refuses an amount whose minimum is above its maximum, then inserts a clean block', async ({
 	browser
 }) => {
-	const lead = await asPerson(browser, DEMO.lead.email);
-	await lead.goto('/library');
-	await lead.getByRole('button', { name: 'Write a procedure' }).click();
-	await expect(lead).toHaveURL(/\/edit$/);
-	const source = lead.getByLabel('Procedure source (Markdown)');
+	const { lead, source } = await newDraft(browser);
 	await source.fill(front(`Refill ${Date.now().toString(36)}`));
 	await source.press('ControlOrMeta+End');
 	await insertForm(lead, 'Fluid (amount or level)', {
@@ -284,11 +289,7 @@ test('the fluid form refuses an amount whose minimum is above its maximum, then 
 test('a lead uploads a reference picture into the draft at the cursor; an SVG is refused and changes nothing', async ({
 	browser
 }) => {
-	const lead = await asPerson(browser, DEMO.lead.email);
-	await lead.goto('/library');
-	await lead.getByRole('button', { name: 'Write a procedure' }).click();
-	await expect(lead).toHaveURL(/\/edit$/);
-	const source = lead.getByLabel('Procedure source (Markdown)');
+	const { lead, source } = await newDraft(browser);
 	const text = front(`Magnet picture ${Date.now().toString(36)}`);
 	await source.fill(text);
 	// The cursor at the end of the step's sentence: the picture goes there, not at the end of the text.

@@ -7,25 +7,12 @@ import { expect, test } from '@playwright/test';
 import { withClient, type PgClient } from '../../scripts/lib/postgres';
 import { uuidv7 } from '../../src/lib/ledger/uuid-v7';
 import { appServer } from './app-server';
-import { FAMILY, publishAndStart, stamp } from './runner-support';
+import { oneBoreSource } from './bore-procedure';
+import { publishAndStart, stamp } from './runner-support';
 import { DEMO, ownerQuery, signIn } from './support';
 
-// 22 mm H7 = 22.000–22.021 mm (ISO 286-2: IT7 for 18–30 mm is 21 µm, H puts the lower deviation at 0).
-const source = () => `---
-title: Crash test ${stamp()}
-family: ${FAMILY}
-purpose: Re-measure one bore many times while the server is killed.
-specs: Invented for tests; not service data.
----
-
-## Measure the bore
-
-\`\`\`measure bore-1
-feature: bore
-nominal: 22 mm
-tolerance: H7
-\`\`\`
-`;
+const source = () =>
+	oneBoreSource(`Crash test ${stamp()}`, 'Re-measure one bore many times while the server is killed.');
 
 /** Demo technician Tomas Reyna's bench PIN (src/lib/server/db/seed.ts). */
 const TECH_PIN = '111111';

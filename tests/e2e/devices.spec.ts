@@ -1,6 +1,6 @@
 import { expect, test, type Page } from '@playwright/test';
 import { DEMO, ownerQuery, signIn } from './support';
-import { PORTRAIT, keyIn, signAs, tablet } from './runner-support';
+import { PORTRAIT, enrolTablet, keyIn, signAs, tablet } from './runner-support';
 
 // Demo data: the invented Kestrel Lane shop and its invented KTX-7 procedures. Bore 1 is 22 mm H7 =
 // 22.000–22.021 mm (ISO 286-2), so 22.030 mm fails and is stored as a failed attempt. Tomas Reyna (demo PIN
@@ -46,15 +46,7 @@ test('a lead enrols a tablet; its records carry a verified device signature; onc
 	// One browser context is one tablet: the lead enrols it, then the technician works on it.
 	const context = await browser.newContext({ viewport: PORTRAIT });
 	const page = await context.newPage();
-	await signIn(page, DEMO.lead.email);
-	// Wait for the sign-in to land: a goto while its POST is in flight would race it.
-	await expect(page).toHaveURL(DEMO.lead.home);
-	await page.goto('/bench/devices');
-	await page.getByLabel('Tablet name').fill(label);
-	await page.getByRole('button', { name: 'Enrol this tablet' }).click();
-	const here = page.getByTestId('this-tablet');
-	await expect(here).toContainText(label);
-	await expect(here).toContainText('Enrolled');
+	await enrolTablet(page, label);
 	await expect(page.getByTestId('device-row').filter({ hasText: label })).toBeVisible();
 
 	const [device] = await ownerQuery<{ id: string; public_key: Record<string, string>; key_thumbprint: string }>(

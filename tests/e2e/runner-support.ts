@@ -77,3 +77,23 @@ export async function publishAndStart(browser: Browser, source: string, assignee
 
 /** A unique title so each test publishes its own procedure. */
 export const stamp = () => `${Date.now().toString(36)}-${Math.random().toString(36).slice(2, 6)}`;
+
+/**
+ * The demo lead enrols the page's browser context (one context is one tablet) as `label` on /bench/devices. With
+ * `handTo`, the lead's session is then dropped and that person signs in on the same tablet.
+ */
+export async function enrolTablet(page: Page, label: string, opts: { handTo?: string } = {}) {
+	await signIn(page, DEMO.lead.email);
+	// Wait for the sign-in to land: a goto while its POST is in flight would race it.
+	await expect(page).toHaveURL(DEMO.lead.home);
+	await page.goto('/bench/devices');
+	await page.getByLabel('Tablet name').fill(label);
+	await page.getByRole('button', { name: 'Enrol this tablet' }).click();
+	const here = page.getByTestId('this-tablet');
+	await expect(here).toContainText(label);
+	await expect(here).toContainText('Enrolled');
+	if (!opts.handTo) return;
+	await page.context().clearCookies();
+	await signIn(page, opts.handTo);
+	await expect(page).not.toHaveURL(/\/signin/);
+}

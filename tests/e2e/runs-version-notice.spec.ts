@@ -1,22 +1,9 @@
 import { expect, test, type APIRequestContext, type APIResponse, type Browser, type Page } from '@playwright/test';
+import { oneBoreSource } from './bore-procedure';
 import { DEMO, ownerQuery, signIn } from './support';
 
 // A newer version published while a run is in progress (issue 4). The procedure is invented for this test.
-const source = (title: string, extra = '') => `---
-title: ${title}
-family: KTX-7 (invented seven-speed dual-clutch transaxle)
-purpose: Check bore 1 of the valve body.
-specs: Invented for the Benchstamp end-to-end test; not service data.
----
-
-## Measure the bore
-
-\`\`\`measure bore-1
-feature: bore
-nominal: 22 mm
-tolerance: H7
-\`\`\`
-${extra}`;
+const source = (title: string, extra = '') => oneBoreSource(title, 'Check bore 1 of the valve body.', extra);
 
 async function asPerson(browser: Browser, email: string): Promise<Page> {
 	const page = await (await browser.newContext()).newPage();

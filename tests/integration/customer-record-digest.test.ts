@@ -1,11 +1,6 @@
-import { mkdtemp, rm } from 'node:fs/promises';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { withClient } from '../../scripts/lib/postgres';
-import { readCapturedMail, startFakeSmtp } from '../../src/lib/server/fake-smtp';
-import { useSmtp } from '../../src/lib/server/mail';
 import * as anchors from '../../src/lib/server/repositories/anchors';
 import * as ledger from '../../src/lib/server/repositories/ledger';
 import {
@@ -19,30 +14,23 @@ import { makePerson } from '../factories/people';
 import { makeRunWithFinding } from '../factories/runs';
 import { testDbUrls } from './db-urls';
 import { migratedAppOrm } from './support/orm';
+import { startTestSmtp } from './support/smtp';
 
 const tokenIn = (text: string) => text.match(/\/record\/([A-Za-z0-9_-]+)/)?.[1] ?? '';
 
 describe('customer rebuild record, review mail and the daily digest', () => {
 	let orm: MikroORM;
-	let mailDir: string;
-	let closeSmtp: () => Promise<void>;
+	let smtp: Awaited<ReturnType<typeof startTestSmtp>>;
 	beforeAll(async () => {
-		// mail.ts reads MAIL_FROM through env(), which wants the app's settings.
-		process.env.DATABASE_URL ??= testDbUrls().appUrl;
-		process.env.AUTH_SECRET ??= 'integration-test-secret-0123456789abcdef';
-		process.env.BENCHSTAMP_MODE ??= 'demo';
+		// migratedAppOrm sets the app's settings env() needs (mail.ts reads MAIL_FROM through it).
 		orm = await migratedAppOrm();
-		mailDir = await mkdtemp(join(tmpdir(), 'q3-mail-'));
-		const smtp = await startFakeSmtp(0, mailDir);
-		closeSmtp = smtp.close;
-		useSmtp(`smtp://127.0.0.1:${smtp.port}`);
+		smtp = await startTestSmtp();
 	});
 	afterAll(async () => {
-		await closeSmtp();
-		await rm(mailDir, { recursive: true, force: true });
+		await smtp.close();
 		await orm.close(true);
 	});
-	const mailTo = async (to: string) => (await readCapturedMail(mailDir)).filter((m) => m.to.includes(to));
+	const mailTo = (to: string) => smtp.mailTo(to);
 
 	const runWithFinding = () => makeRunWithFinding(orm);
 

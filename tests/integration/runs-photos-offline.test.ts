@@ -1,17 +1,12 @@
 import { createHash } from 'node:crypto';
-import type { MikroORM } from '@mikro-orm/postgresql';
 import sharp from 'sharp';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { uuidv7 } from '../../src/lib/ledger/uuid-v7';
 import type { IUser } from '../../src/lib/server/db/entities';
 import * as ledger from '../../src/lib/server/repositories/ledger';
-import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
-import { submitRecords } from '../../src/lib/server/services/submit.service';
-import { closeObjectStore, useObjectStore } from '../../src/lib/server/storage';
 import { makePerson } from '../factories/people';
-import { makeRun, PIN, record } from '../factories/runs';
-import { migratedAppOrm } from './support/orm';
-import { startTestS3, type TestS3 } from './support/s3';
+import { makeRun, PIN, record, viewer } from '../factories/runs';
+import { usePhotoWorld } from './support/photo-world';
 
 // The services import `$lib/...`, which vitest resolves through the SvelteKit plugin.
 const images = await import('../../src/lib/server/services/images.service');
@@ -20,7 +15,6 @@ const { storeTabletPhoto, photosOnTheirWay, METADATA_REFUSED } =
 const { releaseState } = await import('../../src/lib/server/services/release.service');
 const { SVG_REFUSED } = await import('../../src/lib/server/images');
 
-const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
 const sha256 = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 /** What the tablet stores: a canvas re-encode, JPEG with no metadata (made here with sharp, which writes none). */
 const tabletJpeg = async (seed: number) =>
@@ -31,25 +25,8 @@ const tabletJpeg = async (seed: number) =>
 	);
 
 describe('photos taken with the network down: declared in the record, uploaded after it', () => {
-	let orm: MikroORM;
-	let s3: TestS3;
-	beforeAll(async () => {
-		orm = await migratedAppOrm();
-		s3 = await startTestS3();
-		useObjectStore(s3.store);
-	});
-	afterAll(async () => {
-		closeObjectStore();
-		await s3.close();
-		await orm.close(true);
-	});
-
-	async function submit(actor: IUser, runId: string, records: unknown[]) {
-		const batch = submitBatchSchema.parse({ records, pins: { [actor.id]: PIN } });
-		const r = await submitRecords(orm.em.fork(), viewer(actor), runId, batch);
-		if (!r.ok) throw new Error(r.message);
-		return r.value.answers;
-	}
+	const world = usePhotoWorld();
+	const { submit } = world;
 	const finding = (runId: string, tech: IUser, photos: string[], tabletPhotos?: unknown) =>
 		record(runId, tech, 'finding', {
 			...(tabletPhotos === undefined ? {} : { tabletPhotos }),
@@ -58,11 +35,11 @@ describe('photos taken with the network down: declared in the record, uploaded a
 			photos
 		});
 	const put = (actor: IUser, runId: string, photoId: string, bytes: Uint8Array) =>
-		storeTabletPhoto(orm.em.fork(), viewer(actor), { runId, photoId, bytes });
+		storeTabletPhoto(world.orm.em.fork(), viewer(actor), { runId, photoId, bytes });
 
 	/** A run with a finding that names one photo still on the tablet; its id, bytes and declared sha256. */
 	async function runWithKeptPhoto() {
-		const made = await makeRun(orm.em.fork());
+		const made = await makeRun(world.orm.em.fork());
 		const bytes = await tabletJpeg(40);
 		const photoId = uuidv7();
 		const [answer] = await submit(made.tech, made.runId, [
@@ -74,21 +51,21 @@ describe('photos taken with the network down: declared in the record, uploaded a
 	it('accepts the record, stores the declared sha256 marked from the tablet, then stores exactly those bytes', async () => {
 		const { tech, runId, bytes, photoId, answer } = await runWithKeptPhoto();
 		expect(answer).toMatchObject({ status: 'accepted', seq: 1 });
-		const [row] = await ledger.listForRun(orm.em.fork(), runId);
+		const [row] = await ledger.listForRun(world.orm.em.fork(), runId);
 		expect((row.body as { photoHashes: unknown }).photoHashes).toEqual([
 			{ id: photoId, sha256: sha256(bytes), from: 'tablet' }
 		]);
-		expect(await photosOnTheirWay(orm.em.fork(), [runId])).toEqual([
+		expect(await photosOnTheirWay(world.orm.em.fork(), [runId])).toEqual([
 			{ photoId, recordSeq: 1, kind: 'finding', signer: 'Test Technician' }
 		]);
 
 		const stored = await put(tech, runId, photoId, bytes);
 		expect(stored).toEqual({ ok: true, value: { status: 'stored', id: photoId, already: false } });
 		// Read back through the bucket (readImage re-hashes it): the stored sha256 is the one the record signed.
-		const back = await images.readImage(orm.em.fork(), photoId);
+		const back = await images.readImage(world.orm.em.fork(), photoId);
 		expect(back?.sha256).toBe(sha256(bytes));
 		expect(sha256(back!.body)).toBe(sha256(bytes));
-		expect(await photosOnTheirWay(orm.em.fork(), [runId])).toEqual([]);
+		expect(await photosOnTheirWay(world.orm.em.fork(), [runId])).toEqual([]);
 		// Idempotent: the same photo again is answered stored, nothing new is written.
 		expect(await put(tech, runId, photoId, bytes)).toMatchObject({ ok: true, value: { already: true } });
 		// Once stored, a later record naming it must declare the stored hash if it declares one at all.
@@ -102,8 +79,8 @@ describe('photos taken with the network down: declared in the record, uploaded a
 
 	it('refuses wrong bytes, another run, an undeclared photo, an SVG and a photo carrying EXIF — each with its reason', async () => {
 		const { tech, runId, bytes, photoId } = await runWithKeptPhoto();
-		const other = await makeRun(orm.em.fork());
-		const objectsBefore = (await s3.keys()).length;
+		const other = await makeRun(world.orm.em.fork());
+		const objectsBefore = (await world.s3.keys()).length;
 
 		const wrong = await put(tech, runId, photoId, await tabletJpeg(41));
 		expect(wrong).toMatchObject({ ok: false, status: 409 });
@@ -151,16 +128,16 @@ describe('photos taken with the network down: declared in the record, uploaded a
 		expect(declared.status).toBe('accepted');
 		expect(await put(tech, runId, svgId, svg)).toEqual({ ok: false, status: 415, message: SVG_REFUSED });
 		expect(await put(tech, runId, exifId, exif)).toEqual({ ok: false, status: 415, message: METADATA_REFUSED });
-		expect(await images.describeImage(orm.em.fork(), svgId)).toBeUndefined();
-		expect(await images.describeImage(orm.em.fork(), exifId)).toBeUndefined();
+		expect(await images.describeImage(world.orm.em.fork(), svgId)).toBeUndefined();
+		expect(await images.describeImage(world.orm.em.fork(), exifId)).toBeUndefined();
 		// Nothing refused reached the bucket (counted on the fake's disk, not through the API).
-		expect(await s3.keys()).toHaveLength(objectsBefore);
+		expect(await world.s3.keys()).toHaveLength(objectsBefore);
 	});
 
 	it('keeps every existing refusal and checks the declaration itself', async () => {
-		const { tech, runId } = await makeRun(orm.em.fork());
-		const someone = await makePerson(orm.em.fork(), { roles: ['technician'], name: 'Other Technician' });
-		const theirs = await images.storeImage(orm.em.fork(), someone, {
+		const { tech, runId } = await makeRun(world.orm.em.fork());
+		const someone = await makePerson(world.orm.em.fork(), { roles: ['technician'], name: 'Other Technician' });
+		const theirs = await images.storeImage(world.orm.em.fork(), someone, {
 			bytes: await tabletJpeg(50),
 			filename: 'x.jpg',
 			purpose: 'finding'
@@ -182,15 +159,15 @@ describe('photos taken with the network down: declared in the record, uploaded a
 		expect(answers[2].reason).toMatch(/^body\.tabletPhotos: photo .* is declared but the record does not name it\.$/);
 		expect(answers[3].reason).toBe('body.tabletPhotos.0.sha256: A tablet photo sha256 is 64 lower-case hex digits.');
 		expect(answers[4].reason).toBe('body.tabletPhotos.0.id: A tablet photo id is a uuid v7.');
-		expect(await ledger.listForRun(orm.em.fork(), runId)).toEqual([]);
+		expect(await ledger.listForRun(world.orm.em.fork(), runId)).toEqual([]);
 	});
 
 	it('refuses release while a declared photo is still on the tablet, and drops the reason once it arrives', async () => {
 		const { tech, runId, bytes, photoId } = await runWithKeptPhoto();
-		const quality = await makePerson(orm.em.fork(), { roles: ['quality'], pin: PIN, name: 'Test Quality Lead' });
+		const quality = await makePerson(world.orm.em.fork(), { roles: ['quality'], pin: PIN, name: 'Test Quality Lead' });
 		const reason = '1 photo is still on the tablet that took it: release once it has been synced.';
-		expect((await releaseState(orm.em.fork(), viewer(quality), runId))?.reasons).toContain(reason);
+		expect((await releaseState(world.orm.em.fork(), viewer(quality), runId))?.reasons).toContain(reason);
 		await put(tech, runId, photoId, bytes);
-		expect((await releaseState(orm.em.fork(), viewer(quality), runId))?.reasons).not.toContain(reason);
+		expect((await releaseState(world.orm.em.fork(), viewer(quality), runId))?.reasons).not.toContain(reason);
 	});
 });

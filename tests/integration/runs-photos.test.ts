@@ -1,17 +1,12 @@
 import { createHash } from 'node:crypto';
-import type { MikroORM } from '@mikro-orm/postgresql';
 import sharp from 'sharp';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { verifyChain } from '../../src/lib/ledger/chain';
 import type { IUser } from '../../src/lib/server/db/entities';
 import * as ledger from '../../src/lib/server/repositories/ledger';
-import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
-import { submitRecords } from '../../src/lib/server/services/submit.service';
-import { closeObjectStore, useObjectStore } from '../../src/lib/server/storage';
 import { makePerson } from '../factories/people';
-import { FAMILY, makeRun, PIN, record } from '../factories/runs';
-import { migratedAppOrm } from './support/orm';
-import { startTestS3, type TestS3 } from './support/s3';
+import { FAMILY, makeRun, record } from '../factories/runs';
+import { usePhotoWorld } from './support/photo-world';
 
 // The services import `$lib/...`, which vitest resolves through the SvelteKit plugin.
 const images = await import('../../src/lib/server/services/images.service');
@@ -46,7 +41,6 @@ photo: required
 \`\`\`
 `;
 
-const viewer = (u: IUser) => ({ id: u.id, name: u.name, roles: u.roles });
 const sha256 = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 const png = (seed: number) =>
 	sharp({ create: { width: 64, height: 48, channels: 3, background: { r: seed, g: 90, b: 140 } } })
@@ -54,27 +48,10 @@ const png = (seed: number) =>
 		.toBuffer();
 
 describe('run photos and part entries on the submit route', () => {
-	let orm: MikroORM;
-	let s3: TestS3;
-	beforeAll(async () => {
-		orm = await migratedAppOrm();
-		s3 = await startTestS3();
-		useObjectStore(s3.store);
-	});
-	afterAll(async () => {
-		closeObjectStore();
-		await s3.close();
-		await orm.close(true);
-	});
-
-	async function submit(actor: IUser, runId: string, records: unknown[]) {
-		const batch = submitBatchSchema.parse({ records, pins: { [actor.id]: PIN } });
-		const r = await submitRecords(orm.em.fork(), viewer(actor), runId, batch);
-		if (!r.ok) throw new Error(r.message);
-		return r.value.answers;
-	}
+	const world = usePhotoWorld();
+	const { submit } = world;
 	async function upload(by: IUser, purpose: 'finding' | 'procedure' | 'intake' = 'finding', seed = 10) {
-		const r = await images.storeImage(orm.em.fork(), by, {
+		const r = await images.storeImage(world.orm.em.fork(), by, {
 			bytes: new Uint8Array(await png(seed)),
 			filename: 'bench.png',
 			purpose
@@ -82,10 +59,10 @@ describe('run photos and part entries on the submit route', () => {
 		if (!r.ok) throw new Error(r.message);
 		return r.value.id;
 	}
-	const rows = async (runId: string) => (await ledger.listForRun(orm.em.fork(), runId)).map(ledger.toStored);
+	const rows = async (runId: string) => (await ledger.listForRun(world.orm.em.fork(), runId)).map(ledger.toStored);
 
 	it('writes the sha256 of each STORED photo into a finding raised on a step with no failed reading', async () => {
-		const { tech, runId } = await makeRun(orm.em.fork(), { source: SOURCE() });
+		const { tech, runId } = await makeRun(world.orm.em.fork(), { source: SOURCE() });
 		const a = await upload(tech, 'finding', 20);
 		const b = await upload(tech, 'finding', 30);
 		const forgedHash = '0'.repeat(64);
@@ -102,7 +79,7 @@ describe('run photos and part entries on the submit route', () => {
 		const body = row.body as { photos: string[]; photoHashes: { id: string; sha256: string }[] };
 		expect(body.photos).toEqual([a, b]);
 		// Hash of the bytes in the bucket (through the API, re-checked by readImage), not anything the client sent.
-		const stored = await Promise.all([a, b].map((id) => images.readImage(orm.em.fork(), id)));
+		const stored = await Promise.all([a, b].map((id) => images.readImage(world.orm.em.fork(), id)));
 		expect(body.photoHashes).toEqual([
 			{ id: a, sha256: sha256(stored[0]!.body) },
 			{ id: b, sha256: sha256(stored[1]!.body) }
@@ -112,8 +89,8 @@ describe('run photos and part entries on the submit route', () => {
 	});
 
 	it('refuses a record naming an unknown photo id, someone else’s photo, or a procedure picture', async () => {
-		const { tech, lead, runId } = await makeRun(orm.em.fork(), { source: SOURCE() });
-		const other = await makePerson(orm.em.fork(), { roles: ['technician'], name: 'Other Technician' });
+		const { tech, lead, runId } = await makeRun(world.orm.em.fork(), { source: SOURCE() });
+		const other = await makePerson(world.orm.em.fork(), { roles: ['technician'], name: 'Other Technician' });
 		const othersPhoto = await upload(other, 'finding');
 		const procedurePicture = await upload(lead, 'procedure');
 		const finding = (photos: unknown) =>
@@ -149,7 +126,7 @@ describe('run photos and part entries on the submit route', () => {
 	});
 
 	it('checks checkpoint photos of a sign-off the same way and records their hashes', async () => {
-		const { tech, runId } = await makeRun(orm.em.fork(), { source: SOURCE() });
+		const { tech, runId } = await makeRun(world.orm.em.fork(), { source: SOURCE() });
 		const photo = await upload(tech);
 		const signoff = (photos: string[]) =>
 			record(runId, tech, 'signoff', {
@@ -162,13 +139,13 @@ describe('run photos and part entries on the submit route', () => {
 		expect(ok.status).toBe('accepted');
 		const [row] = await rows(runId);
 		const body = row.body as { photoHashes: { id: string; sha256: string }[]; evaluation: { status: string }[] };
-		const stored = await images.readImage(orm.em.fork(), photo);
+		const stored = await images.readImage(world.orm.em.fork(), photo);
 		expect(body.photoHashes).toEqual([{ id: photo, sha256: stored!.sha256 }]);
 		expect(body.evaluation[0].status).toBe('pass');
 	});
 
 	it('judges a part entry on the server: a part number off the pattern is a fail whatever the tablet claimed', async () => {
-		const { tech, runId } = await makeRun(orm.em.fork(), { source: SOURCE() });
+		const { tech, runId } = await makeRun(world.orm.em.fork(), { source: SOURCE() });
 		const photo = await upload(tech);
 		const attempt = (number: string, claimed: 'pass' | 'fail') =>
 			record(runId, tech, 'attempt', {
@@ -224,7 +201,7 @@ shaft: piston-1
 limits: 0.020 to 0.070 mm
 \`\`\`
 `;
-		const { tech, runId } = await makeRun(orm.em.fork(), { source: src });
+		const { tech, runId } = await makeRun(world.orm.em.fork(), { source: src });
 		const step2 = (shaft: string) =>
 			record(runId, tech, 'signoff', {
 				stepIndex: 1,
@@ -252,8 +229,8 @@ limits: 0.020 to 0.070 mm
 	});
 
 	it('offers the lots in the parts register that fit a part checkpoint, and the usable torque wrenches', async () => {
-		const { version } = await makeRun(orm.em.fork(), { source: SOURCE() });
-		const em = orm.em.fork();
+		const { version } = await makeRun(world.orm.em.fork(), { source: SOURCE() });
+		const em = world.orm.em.fork();
 		const parts = await import('../../src/lib/server/repositories/parts');
 		const stamp = Date.now().toString().slice(-2);
 		const part = parts.createPart(em, {
@@ -274,7 +251,7 @@ limits: 0.020 to 0.070 mm
 		lot('PS99000001');
 		lot('XX-not-a-serial');
 		await em.flush();
-		const ctx = await entryContext(orm.em.fork(), version.model);
+		const ctx = await entryContext(world.orm.em.fork(), version.model);
 		const offered = ctx.lots['new-sensor'].filter((l) => l.partNumber === part.partNumber).map((l) => l.lotNumber);
 		expect(offered).toEqual(['PS99000001']);
 	});

@@ -400,6 +400,28 @@ async function latestVersion(em: EntityManager, title: string) {
 	return em.findOne(ProcedureVersion, { procedure: p.id }, { orderBy: { number: 'desc' } });
 }
 
+/** A wrench found and left in tolerance `daysAgo` days before `today` by the invented laboratory, due a year later. */
+function calibratedWrench(
+	tx: EntityManager,
+	actor: { id: string; name: string },
+	today: string,
+	daysAgo: number,
+	tool: Parameters<typeof tools.create>[1]
+) {
+	const wrench = tools.create(tx, tool);
+	const on = addDays(today, -daysAgo);
+	tools.addCalibration(tx, wrench, actor, {
+		kind: 'calibration',
+		performedOn: on,
+		certificateNo: `KLC-${on.slice(0, 4)}-${tool.assetTag}`,
+		asFound: 'in',
+		asLeft: 'in',
+		nextDueOn: addDays(today, 365 - daysAgo),
+		notes: 'Invented calibration laboratory (demo).'
+	});
+	return wrench;
+}
+
 /** Seeds the history once (see the file comment); `now` is the demo's "today". */
 export async function seedHistory(em: EntityManager, now: Date = new Date()): Promise<{ created: number }> {
 	if (await tools.findByAssetTag(em, MARKER_TOOL)) return { created: 0 };
@@ -418,7 +440,7 @@ export async function seedHistory(em: EntityManager, now: Date = new Date()): Pr
 		const ctx: Ctx = { em: tx, lead, quality, tools: new Map() };
 		const today = isoDate(now);
 		const actor = { id: lead.id, name: lead.name };
-		const tw019 = tools.create(tx, {
+		const tw019 = calibratedWrench(tx, actor, today, 70, {
 			assetTag: MARKER_TOOL,
 			kind: 'torque_click',
 			description: 'Click wrench 2–12 N·m, 1/4 in drive (second bench)',
@@ -428,17 +450,8 @@ export async function seedHistory(em: EntityManager, now: Date = new Date()): Pr
 			resolution: '0.1',
 			accuracyPct: '4'
 		});
-		tools.addCalibration(tx, tw019, actor, {
-			kind: 'calibration',
-			performedOn: addDays(today, -70),
-			certificateNo: `KLC-${addDays(today, -70).slice(0, 4)}-TW-019`,
-			asFound: 'in',
-			asLeft: 'in',
-			nextDueOn: addDays(today, 295),
-			notes: 'Invented calibration laboratory (demo).'
-		});
 		// A dial wrench whose usable range (ISO 6789-1: from 20 % of 40 = 8 N·m) covers both pan screws and drain plug.
-		const tw027 = tools.create(tx, {
+		const tw027 = calibratedWrench(tx, actor, today, 100, {
 			assetTag: 'TW-027',
 			kind: 'torque_indicating',
 			description: 'Dial torque wrench 0–40 N·m, 3/8 in drive',
@@ -447,15 +460,6 @@ export async function seedHistory(em: EntityManager, now: Date = new Date()): Pr
 			unit: 'N·m',
 			resolution: '0.5',
 			accuracyPct: '3'
-		});
-		tools.addCalibration(tx, tw027, actor, {
-			kind: 'calibration',
-			performedOn: addDays(today, -100),
-			certificateNo: `KLC-${addDays(today, -100).slice(0, 4)}-TW-027`,
-			asFound: 'in',
-			asLeft: 'in',
-			nextDueOn: addDays(today, 265),
-			notes: 'Invented calibration laboratory (demo).'
 		});
 		await tx.flush();
 		ctx.tools = await loadTools(tx, [gauge, micrometer, tw014, tw031, tw019.id, tw027.id]);

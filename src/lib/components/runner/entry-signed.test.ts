@@ -1,37 +1,10 @@
 import { describe, expect, it } from 'vitest';
 import { evaluate } from '$lib/checks/evaluate';
-import { parse } from '$lib/procedure/parse';
 import { isPristine, signedCheckpoints, signedEvaluation, stateFromSigned, toEntry } from './entry';
+import { clips, sensor, torque, wrench } from './entry-fixtures';
 
-// Invented (not service data): 8 N·m ±10 % in two passes (pass 1 = 50 % = 4 N·m), a click wrench 2–12 N·m ±4 %
-// (usable from 20 % of 12 = 2.4 N·m, ISO 6789-1 via DEFAULT_MIN_SHARE), and a part fitted four times.
-const [torque, clips, sensor] = parse(`---
-title: Signed entries
-family: Invented family
-purpose: Test.
----
-
-## All
-
-\`\`\`torque cover
-target: 8 N·m
-tolerance: ±10 %
-fasteners: [C1, C2]
-passes: 50 %, 100 %
-tool: preset
-\`\`\`
-
-\`\`\`part clips
-number: KL-9901-##
-quantity: 4
-\`\`\`
-
-\`\`\`part sensor
-number: KL-4410-##@
-serial: PS########
-\`\`\`
-`).procedure!.steps[0].checkpoints;
-const wrench = { kind: 'preset' as const, max: '12', unit: 'N_m', accuracyPercent: '4' };
+// Preset torque 8 N·m ±10 % in two passes (pass 1 = 4 N·m), a 2–12 N·m ±4 % click wrench and a part fitted four
+// times: see entry-fixtures.ts.
 const presetEntry = {
 	passes: [
 		{ C1: { reached: true }, C2: { reached: true } },

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { evaluate } from '$lib/checks/evaluate';
 import { parse } from '$lib/procedure/parse';
 import { setToOf, slotsFor, toEntry, toolContextFor, torqueMode, unitSymbol } from './entry';
+import { clearance, photo, sensor as part, torque, wrench } from './entry-fixtures';
 
 // Invented test procedure: a 22 mm H7 bore = 22.000–22.021 mm (ISO 286-2: IT7 for 18–30 mm is 21 µm, H → EI = 0).
 const src = `---
@@ -37,40 +38,7 @@ describe('runner entries', () => {
 	});
 });
 
-// Invented (not service data): 8 N·m ±10 % in two passes, so pass 1 is 4 N·m (3.6–4.4) and pass 2 is 8 N·m.
-// The click wrench is 2–12 N·m; its usable range starts at 20 % of 12 = 2.4 N·m (ISO 6789-1, DEFAULT_MIN_SHARE).
-const kinds = parse(`---
-title: Kinds
-family: Invented family
-purpose: Test.
----
-
-## All
-
-\`\`\`torque cover
-target: 8 N·m
-tolerance: ±10 %
-fasteners: [C1, C2]
-passes: 50 %, 100 %
-tool: preset
-\`\`\`
-
-\`\`\`part sensor
-number: KL-4410-##@
-serial: PS########
-\`\`\`
-
-\`\`\`clearance pin
-fit: 8 H7/g6
-\`\`\`
-
-\`\`\`photo plate
-prompt: Plate.
-min: 1
-\`\`\`
-`).procedure!.steps[0].checkpoints;
-const [torque, part, clearance, photo] = kinds;
-const wrench = { kind: 'preset' as const, max: '12', unit: 'N_m', accuracyPercent: '4' };
+// Preset torque 8 N·m ±10 % in two passes (pass 1 = 4 N·m) with a 2–12 N·m click wrench: see entry-fixtures.ts.
 
 describe('entries for preset torque, part, clearance and photo', () => {
 	it('records a preset wrench as its settings (setTo) and "reached" taps; the engine passes it', () => {

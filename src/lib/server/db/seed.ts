@@ -1,6 +1,7 @@
 // Run by scripts (outside Vite): relative imports only.
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { User, type Role } from './entities';
+import { mailSettled } from '../mail';
 import { hashSecret } from '../passwords';
 import { seedDemoProcedures } from '../procedures-seed';
 import { seedRegisters } from '../registers-seed';
@@ -43,5 +44,7 @@ export async function seedDemo(em: EntityManager): Promise<{ created: number }> 
 	await seedHistory(em);
 	// A run awaiting review with an open finding on an out-of-tolerance bore (Q1, issue 8).
 	await seedQualityDemo(em);
+	// Submitting the seeded records starts review mail after each commit; let it finish before callers close the ORM.
+	await mailSettled();
 	return { created };
 }

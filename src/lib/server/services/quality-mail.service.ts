@@ -1,11 +1,12 @@
 /**
  * Mail to the quality leads: "a run awaits review", sent after the record that completed the run has committed.
- * Sending is fire-and-forget: a failure is logged and never fails or delays the record.
+ * Sending is fire-and-forget: a failure is logged and never fails or delays the record. Scripts that submit records
+ * (the demo seed) wait for it with `mailSettled()` from mail.ts before closing their ORM.
  */
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { IJob, IProcedure, IProcedureVersion, IUser } from '../db/entities';
 import { env } from '../env';
-import { sendMail } from '../mail';
+import { mailConfigured, sendInBackground, sendMail } from '../mail';
 import * as runs from '../repositories/runs';
 import * as users from '../repositories/users';
 
@@ -19,6 +20,8 @@ export const appLink = (path: string) => `${env().ORIGIN ?? ''}${path}`;
 
 /** Mails every quality lead that the run awaits review. Resolves when done; never rejects. */
 export async function sendAwaitingReview(em: EntityManager, runId: string): Promise<number> {
+	// No transport means no app process (the seed scripts, tests without a fake server): there is no one to tell.
+	if (!mailConfigured()) return 0;
 	try {
 		const run = await runs.findById(em, runId);
 		if (!run) return 0;
@@ -47,7 +50,10 @@ export async function sendAwaitingReview(em: EntityManager, runId: string): Prom
 	}
 }
 
-/** {@link sendAwaitingReview} without waiting: the submit path calls this after its transaction committed. */
+/**
+ * {@link sendAwaitingReview} without waiting: the submit path calls this after its transaction committed. Tracked,
+ * so `mailSettled()` waits for it.
+ */
 export function notifyAwaitingReview(em: EntityManager, runId: string): void {
-	void sendAwaitingReview(em, runId);
+	sendInBackground(sendAwaitingReview(em, runId));
 }
