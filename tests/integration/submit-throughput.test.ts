@@ -11,7 +11,10 @@ import { Run, type IUser } from '../../src/lib/server/db/entities';
 import * as adminLog from '../../src/lib/server/repositories/admin-log';
 import * as ledger from '../../src/lib/server/repositories/ledger';
 import { submitBatchSchema } from '../../src/lib/server/services/runs.schema';
-import { submitRecords } from '../../src/lib/server/services/submit.service';
+import { submitRecords, type SubmitOptions } from '../../src/lib/server/services/submit.service';
+import { revoke } from '../../src/lib/server/services/devices.service';
+import * as held from '../../src/lib/server/repositories/held-records';
+import { makeTablet } from '../factories/devices';
 import { boreAttempt, makeRun, PIN, record } from '../factories/runs';
 import { migratedAppOrm } from './support/orm';
 
@@ -24,9 +27,9 @@ describe('submit route fast path', () => {
 	});
 	afterAll(() => orm.close(true));
 
-	async function submit(actor: IUser, runId: string, records: unknown[]) {
+	async function submit(actor: IUser, runId: string, records: unknown[], opts?: SubmitOptions) {
 		const batch = submitBatchSchema.parse({ records, pins: { [actor.id]: PIN } });
-		const r = await submitRecords(orm.em.fork(), viewer(actor), runId, batch);
+		const r = await submitRecords(orm.em.fork(), viewer(actor), runId, batch, opts);
 		if (!r.ok) throw new Error(r.message);
 		return r.value.answers;
 	}
@@ -92,5 +95,73 @@ describe('submit route fast path', () => {
 		expect(new Set(answers.map((a) => a.seq)).size).toBe(40);
 		const rows = await stored(runId);
 		expect(verifyChain(rows)).toMatchObject({ ok: true, count: 40 });
+	});
+
+	it('honours a tablet revoked in the middle of a batch: its row is cached for the batch, each append checks it again', async () => {
+		const { lead, tech, runId } = await makeRun(orm.em.fork());
+		const tablet = await makeTablet(orm.em.fork(), lead, 'Bench 6 tablet');
+		const sent = [
+			await tablet.sign(record(runId, tech, 'attempt', boreAttempt('22.010'))),
+			await tablet.sign(record(runId, tech, 'attempt', boreAttempt('22.012'))), // the fast path
+			await tablet.sign(record(runId, tech, 'signoff', boreAttempt('22.010'))) // the full path
+		];
+		const afterRecord = async (_a: unknown, i: number) => {
+			if (i === 0)
+				await revoke(orm.em.fork(), lead, { deviceId: tablet.device.id, reason: 'Dropped in the parts washer' });
+		};
+		const answers = await submit(tech, runId, sent, { afterRecord });
+		expect(answers.map((a) => a.status)).toEqual(['accepted', 'refused', 'refused']);
+		for (const a of answers.slice(1))
+			expect(a.reason).toMatch(/Tablet “Bench 6 tablet” was revoked on \d{4}-\d{2}-\d{2}.*held for the quality lead/);
+		expect((await stored(runId)).map((r) => r.id)).toEqual([sent[0].id]);
+		const rows = await held.list(orm.em.fork(), { runId });
+		expect(rows.map((r) => [r.held.recordId, r.held.reason]).sort()).toEqual(
+			[
+				[sent[1].id, 'device_revoked'],
+				[sent[2].id, 'device_revoked']
+			].sort()
+		);
+	});
+
+	it('the fast append stores nothing for a revoked tablet, and its statement says so (no write, no error)', async () => {
+		const { lead, tech, runId } = await makeRun(orm.em.fork());
+		const tablet = await makeTablet(orm.em.fork(), lead);
+		const a = await tablet.sign(record(runId, tech, 'attempt', boreAttempt('22.010')));
+		expect((await submit(tech, runId, [a]))[0].status).toBe('accepted');
+		const run = await orm.em.fork().findOneOrFail(Run, { id: runId });
+		const head = { headHash: run.headHash ?? null, recordCount: run.recordCount, state: run.state, reworkSteps: null };
+		const moved = {
+			action: 'run.version_decision',
+			subjectType: 'run',
+			subjectId: runId,
+			detail: { decision: 'move' }
+		};
+		const next = (id: string) => ({
+			id,
+			runId,
+			seq: run.recordCount + 1,
+			kind: 'attempt' as const,
+			body: boreAttempt('22.010'),
+			prevHash: run.headHash ?? null,
+			hash: 'f'.repeat(64)
+		});
+		const columns = {
+			submissionHash: 'e'.repeat(64),
+			signerId: tech.id,
+			signerRole: 'technician',
+			deviceId: tablet.device.id,
+			deviceTime: null,
+			serverTime: new Date(),
+			engineVersion: 'test',
+			signedOffline: false
+		};
+		await revoke(orm.em.fork(), lead, { deviceId: tablet.device.id, reason: 'Lost' });
+		const guard = { unlessLogged: moved, activeDevice: tablet.device.id };
+		expect(await ledger.lockAndAppendIfHead(orm.em.fork(), next(uuidv7()), columns, head, guard)).toBe(false);
+		expect(await stored(runId)).toHaveLength(1);
+		// The same statement for a tablet still enrolled (none named) stores the record.
+		const ok = { unlessLogged: moved, activeDevice: null };
+		expect(await ledger.lockAndAppendIfHead(orm.em.fork(), next(uuidv7()), columns, head, ok)).toBe(true);
+		expect(await stored(runId)).toHaveLength(2);
 	});
 });

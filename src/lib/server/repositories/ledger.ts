@@ -199,14 +199,18 @@ function inline(sql: string, values: unknown[]): string {
 	return out;
 }
 
-/** The fast append's statement text, placeholders for: the record, the expected head, the unless-logged entry, the new head. */
+/**
+ * The fast append's statement text, placeholders for: the run (lock), the record, the expected head, the
+ * unless-logged entry, the tablet that must not be revoked, the new head.
+ */
 const FAST_APPEND =
 	`select 1 from "run" where "id" = ? for update;\n` +
 	`with "ins" as (insert into "ledger_record" (${RECORD_COLUMNS}) select ${RECORD_PLACEHOLDERS} ` +
 	`where exists (select 1 from "run" where "id" = ? and "head_hash" is not distinct from ? and "record_count" = ? ` +
 	`and "state" = ? and "rework_steps" is not distinct from ?::jsonb) ` +
 	`and not exists (select 1 from "admin_log" where "action" = ? and "subject_type" = ? and "subject_id" = ? and ` +
-	`"detail" @> ?::jsonb) returning "id") ` +
+	`"detail" @> ?::jsonb) ` +
+	`and not exists (select 1 from "device" where "id" = ?::uuid and "revoked_at" is not null) returning "id") ` +
 	`update "run" set "head_hash" = ?, "record_count" = ?, "updated_at" = ?::timestamptz ` +
 	`where "id" = ? and exists (select 1 from "ins")`;
 
@@ -224,7 +228,8 @@ interface ConnectionPool {
  * implicit transaction (rolled back whole on any error). The first statement takes the run's row lock
  * (`SELECT … FOR UPDATE`); the second — with its own snapshot, taken once the lock is held — inserts the record and
  * advances the head only if the run's row is still `expect` (same head, count, state and rework steps: the record's
- * `prevHash`/`seq` were chained on it) and no `unlessLogged` entry exists. Returns whether it stored the record;
+ * `prevHash`/`seq` were chained on it), no `unlessLogged` entry exists and the enrolled tablet `activeDevice` (the
+ * one whose signature was verified; null for none) has not been revoked by then. Returns whether it stored the record;
  * false (or a thrown database error) means nothing was stored and the caller takes the full path.
  *
  * The hot path of the submit route: the text goes straight to a pooled `pg` client (no query builder, no ORM
@@ -236,8 +241,9 @@ export async function lockAndAppendIfHead(
 	record: StoredRecord,
 	c: RecordColumns,
 	expect: ExpectedHead,
-	unlessLogged: UnlessLogged
+	guard: { unlessLogged: UnlessLogged; activeDevice: string | null }
 ): Promise<boolean> {
+	const { unlessLogged } = guard;
 	const text = inline(FAST_APPEND, [
 		record.runId,
 		...recordValues(record, c),
@@ -250,6 +256,7 @@ export async function lockAndAppendIfHead(
 		unlessLogged.subjectType,
 		unlessLogged.subjectId,
 		JSON.stringify(unlessLogged.detail),
+		guard.activeDevice,
 		record.hash,
 		record.seq,
 		c.serverTime.toISOString(),

@@ -7,6 +7,14 @@ export function findById(em: EntityManager, id: string): Promise<IRun | null> {
 }
 
 /**
+ * The run with only what the submit route reads of it: its procedure version (the model records are judged by);
+ * the assignee stays a reference (its id is all `maySee` needs). Per batch, so the three other joins are saved.
+ */
+export function findForSubmit(em: EntityManager, id: string): Promise<IRun | null> {
+	return em.findOne(Run, { id }, { populate: ['procedureVersion'] });
+}
+
+/**
  * The run's row, locked FOR UPDATE until the surrounding transaction ends: every append takes this lock first, so
  * two appends to one run are strictly one after the other and each sees the head the other left. Call only inside
  * a transaction; `refresh` makes sure the head is read from the database, not from the identity map.

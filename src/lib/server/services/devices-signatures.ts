@@ -62,66 +62,107 @@ export async function verifyDeviceSignature(device: IDevice, s: Submission, valu
 	}
 }
 
+/** Enrolled tablets by id, read once per submitted batch (the submit service's batch cache). */
+export type DeviceRows = Map<string, Promise<IDevice | null>>;
+
+/** Holds a refused record for the quality lead (idempotent: a resend holds nothing twice) and answers the refusal. */
+async function refuseAndHold(
+	em: EntityManager,
+	s: Submission,
+	raw: unknown,
+	runId: string,
+	reason: HoldReason,
+	message: string
+): Promise<DeviceCheck> {
+	await held.hold(em, null, {
+		recordId: s.id,
+		runId,
+		deviceId: s.signature?.deviceId ?? s.deviceId ?? null,
+		signerId: s.signer.id,
+		submission: raw,
+		reason,
+		message
+	});
+	return { ok: false, reason: `${message} The record is held for the quality lead.`, held: true };
+}
+
+const revokedMessage = (device: IDevice) =>
+	`Tablet “${device.label}” was revoked on ${device.revokedAt!.toISOString().slice(0, 10)}: its records are not stored.`;
+
 /**
  * Checks one parsed submission's device and signature; a refusal that must reach the quality lead is held here
  * (idempotent: a resend holds nothing twice). On success the stamp is remembered for {@link deviceStamp}.
+ *
+ * With `rows` the tablet's row is read once per batch. A revocation that lands later in the batch is still
+ * honoured record by record: the append itself checks it under the run's row lock (the fast append's statement
+ * stores nothing for a tablet revoked by then; the full path calls {@link revokedRefusal}), see {@link enrolledDeviceOf}.
  */
 export async function checkSubmission(
 	em: EntityManager,
 	s: Submission,
 	raw: unknown,
-	runId: string
+	runId: string,
+	rows?: DeviceRows
 ): Promise<DeviceCheck> {
-	const refuseAndHold = async (reason: HoldReason, message: string): Promise<DeviceCheck> => {
-		await held.hold(em, null, {
-			recordId: s.id,
-			runId,
-			deviceId: s.signature?.deviceId ?? s.deviceId ?? null,
-			signerId: s.signer.id,
-			submission: raw,
-			reason,
-			message
-		});
-		return { ok: false, reason: `${message} The record is held for the quality lead.`, held: true };
-	};
+	const refuse = (reason: HoldReason, message: string) => refuseAndHold(em, s, raw, runId, reason, message);
 	const sig = s.signature;
 	if (sig && sig.deviceId !== s.deviceId)
-		return refuseAndHold(
+		return refuse(
 			'bad_signature',
 			`The signature names tablet ${sig.deviceId} but the record was sent as tablet ${s.deviceId ?? '(none)'}.`
 		);
 	const claimed = sig?.deviceId ?? s.deviceId;
-	const device = claimed ? await devices.findById(em, claimed) : null;
-	if (device?.revokedAt)
-		return refuseAndHold(
-			'device_revoked',
-			`Tablet “${device.label}” was revoked on ${device.revokedAt.toISOString().slice(0, 10)}: its records are not stored.`
-		);
+	let device: IDevice | null = null;
+	if (claimed && rows) {
+		let row = rows.get(claimed);
+		if (!row) {
+			row = devices.findById(em.fork(), claimed);
+			rows.set(claimed, row);
+		}
+		device = await row;
+	} else if (claimed) device = await devices.findById(em, claimed);
+	if (device?.revokedAt) return refuse('device_revoked', revokedMessage(device));
 	let stamp: DeviceStamp;
 	if (device) {
 		if (!sig)
-			return refuseAndHold(
+			return refuse(
 				'bad_signature',
 				`Tablet “${device.label}” is enrolled, so its records must carry its device signature; this one has none.`
 			);
 		if (!(await verifyDeviceSignature(device, s, sig.value)))
-			return refuseAndHold(
+			return refuse(
 				'bad_signature',
 				`The device signature does not match this record: it was changed after signing, or signed with another key than tablet “${device.label}”'s.`
 			);
 		stamp = { status: 'verified', deviceId: device.id, keyThumbprint: device.keyThumbprint };
 	} else if (sig) {
-		return refuseAndHold(
-			'unknown_device',
-			`The record is signed by tablet ${sig.deviceId}, which is not enrolled here.`
-		);
+		return refuse('unknown_device', `The record is signed by tablet ${sig.deviceId}, which is not enrolled here.`);
 	} else if (s.signedOffline) {
-		return refuseAndHold('bad_signature', 'A record signed offline must carry an enrolled tablet’s device signature.');
+		return refuse('bad_signature', 'A record signed offline must carry an enrolled tablet’s device signature.');
 	} else {
 		stamp = { status: 'unsigned', deviceId: s.deviceId ?? null };
 	}
 	stamps.set(s, stamp);
 	return { ok: true, stamp };
+}
+
+/**
+ * The enrolled tablet whose signature {@link checkSubmission} verified on `s` (null for an unsigned record): the
+ * append must still find it not revoked, under the run's row lock, before it stores the record.
+ */
+export function enrolledDeviceOf(s: Submission): string | null {
+	const stamp = stamps.get(s);
+	return stamp?.status === 'verified' ? stamp.deviceId : null;
+}
+
+/**
+ * Why the tablet `deviceId` no longer signs (it has been revoked by now), or null while it is still enrolled. Read
+ * with `tx` inside the record's transaction once it holds the run's row lock. The caller holds the refusal for the
+ * quality lead AFTER that transaction (`markHeld`, as a held clash): holding inside it would wait on the run's lock.
+ */
+export async function revokedRefusal(tx: EntityManager, deviceId: string): Promise<string | null> {
+	const device = await devices.findById(tx, deviceId);
+	return device?.revokedAt ? revokedMessage(device) : null;
 }
 
 /** The `deviceSignature` member to put in the stored body of a submission {@link checkSubmission} passed. */

@@ -32,17 +32,23 @@ import { findSummary, type ToolSummary } from '../repositories/tools';
 import * as users from '../repositories/users';
 import { verifyPin } from './accounts.service';
 import { maySee, type Result, type Viewer } from './runs.service';
-import { checkSubmission as checkDeviceSignature, deviceStamp } from './devices-signatures';
+import {
+	checkSubmission as checkDeviceSignature,
+	deviceStamp,
+	enrolledDeviceOf,
+	revokedRefusal,
+	type DeviceRows
+} from './devices-signatures';
 import { movedTo } from './run-versions.service';
 import * as r2 from './run-records';
 import { completionRecords, currentRecords } from '../../ledger/step-state';
 import { lateRecordRefusal, stepsToComplete } from './release-guard';
 import { withRecordPhotos } from './run-photos';
-import { priorEntries } from './run-prior-entries';
+import { priorEntries, referencedElsewhere } from './run-prior-entries';
 import { notifyAwaitingReview } from './quality-mail.service';
 import { grantFor, offlineRefusal, type OfflineGrantAnswer } from './offline-signing';
 import { clientConflictRefusal, CONFLICT_KINDS, conflictFor, heldConflict } from './run-conflicts';
-import { holdRefusal } from './held-refusals';
+import { holdRefusal, markHeld } from './held-refusals';
 import {
 	entriesBodySchema,
 	findingBodySchema,
@@ -69,6 +75,8 @@ export interface RecordAnswer {
 export interface SubmitOptions {
 	/** The server clock (tests move it for the PIN lock). */
 	now?: () => Date;
+	/** Called after each record is answered, before the next one (tests act between two records of one batch). */
+	afterRecord?: (answer: RecordAnswer, index: number) => Promise<void>;
 }
 
 /** Kinds a client may submit today; the rest (N/A approval, supersession…) come with their rules. */
@@ -189,6 +197,8 @@ interface BatchCache {
 	signers: Map<string, Promise<IUser | null>>;
 	qualified: Map<string, Promise<boolean>>;
 	tools: Map<string, Promise<ToolSummary | null>>;
+	/** Enrolled tablets named by the batch (whether one was revoked since is checked again by each append). */
+	devices: DeviceRows;
 	/** Offline signing grants earned in this batch, by record id (answered with the record's acceptance). */
 	grants: Map<string, OfflineGrantAnswer>;
 }
@@ -215,6 +225,17 @@ function checkpointsOf(model: Procedure): Record<string, Checkpoint> {
 		checkpointIndex.set(model, all);
 	}
 	return all;
+}
+
+/** Whether a step's checkpoints read entries signed on other steps (worked out once per step of a model). */
+const readsOther = new WeakMap<Step, boolean>();
+function readsOtherSteps(step: Step): boolean {
+	let v = readsOther.get(step);
+	if (v === undefined) {
+		v = referencedElsewhere(step).length > 0;
+		readsOther.set(step, v);
+	}
+	return v;
 }
 
 /** Re-runs `evaluate()` on every entry, checks qualification and tools; the server's evaluation goes in the body. */
@@ -269,7 +290,7 @@ async function checkEntries(
 
 	const all = checkpointsOf(model);
 	const entries = {
-		...(await priorEntries(em, s.runId, step)), // a clearance reads measures signed on earlier steps
+		...(readsOtherSteps(step) ? await priorEntries(em, s.runId, step) : {}), // a clearance reads earlier steps
 		...Object.fromEntries(body.entries.map((e) => [e.checkpointId, e.entry]))
 	};
 	const evaluation: JsonValue[] = [];
@@ -383,7 +404,7 @@ export async function submitRecords(
 	opts: SubmitOptions = {}
 ): Promise<Result<{ answers: RecordAnswer[]; serverTime: number }>> {
 	const clock = opts.now ?? (() => new Date());
-	const run = await runs.findById(em, runId);
+	const run = await runs.findForSubmit(em, runId);
 	if (!run || !(await maySee(em, actor, run))) return { ok: false, status: 404, message: 'No such run.' };
 	const version = run.procedureVersion as unknown as IProcedureVersion;
 	const pinResults = new Map<string, PinCheck>();
@@ -395,6 +416,7 @@ export async function submitRecords(
 		signers: new Map(),
 		qualified: new Map(),
 		tools: new Map(),
+		devices: new Map(),
 		grants: new Map()
 	};
 	const seen = seenOf(run);
@@ -424,6 +446,7 @@ export async function submitRecords(
 			});
 		const grant = answer.status === 'accepted' ? cache.grants.get(answer.id) : undefined;
 		answers.push(grant ? { ...answer, offlineGrant: grant } : answer);
+		await opts.afterRecord?.(answer, i);
 	}
 	return { ok: true, value: { answers, serverTime: clock().getTime() } };
 }
@@ -457,7 +480,7 @@ async function prepare(
 	if (known) return answer(known);
 	if (!ACCEPTED_KINDS.includes(s.kind)) return answer(refused(s.id, `Records of kind ${s.kind} are not accepted yet.`));
 	// Device signatures (offline issue, devices-signatures.ts): a revoked or unverifiable tablet's record is held.
-	const deviceCheck = await checkDeviceSignature(em, s, raw, run.id);
+	const deviceCheck = await checkDeviceSignature(em, s, raw, run.id, cache.devices);
 	if (!deviceCheck.ok) return answer(refused(s.id, deviceCheck.reason));
 
 	const signer = await cached(cache.signers, s.signer.id, () => users.findById(em.fork(), s.signer.id));
@@ -542,10 +565,14 @@ export function appendServerRecord(
 	return stored;
 }
 
-/** The stored body of a checked record: what was sent, what the server adds, who signed where and when. */
+/**
+ * The stored body of a checked record: what was sent, what the server adds, who signed where and when. Every part
+ * is plain JSON already (the sent body passed `jsonBodySchema`, the server's parts are typed `JsonValue` and built
+ * from strings), so no JSON round trip here; `canonicalize` would refuse anything else before it is hashed.
+ */
 function recordBody(p: Extract<Prepared, { kind: 'append' }>, serverTime: Date): JsonValue {
 	const { s } = p;
-	return plain({
+	return {
 		...(s.body as Record<string, JsonValue>),
 		...p.extra,
 		...deviceStamp(s),
@@ -553,7 +580,7 @@ function recordBody(p: Extract<Prepared, { kind: 'append' }>, serverTime: Date):
 		device: { id: s.deviceId ?? null, time: s.signedAt === undefined ? null : new Date(s.signedAt).toISOString() },
 		serverTime: serverTime.toISOString(),
 		engine: ENGINE_VERSION
-	});
+	} as unknown as JsonValue; // DeviceStamp is an interface (no index signature), JSON all the same
 }
 
 function recordColumns(p: Extract<Prepared, { kind: 'append' }>, serverTime: Date): ledger.RecordColumns {
@@ -598,8 +625,8 @@ async function appendFast(
 	const head = seen.headHash ? { runId, seq: seen.recordCount, hash: seen.headHash } : null;
 	const stored = appendTo(head, { id: s.id, runId, kind: s.kind, body: recordBody(p, serverTime) }, serverRecordHash);
 	try {
-		if (!(await ledger.lockAndAppendIfHead(em, stored, recordColumns(p, serverTime), seen, moveDecision(runId))))
-			return null;
+		const guard = { unlessLogged: moveDecision(runId), activeDevice: enrolledDeviceOf(s) };
+		if (!(await ledger.lockAndAppendIfHead(em, stored, recordColumns(p, serverTime), seen, guard))) return null;
 	} catch (e) {
 		// A database error rolled the implicit transaction back: the full path retries and answers it.
 		if (e instanceof Error && 'code' in e) return null;
@@ -639,6 +666,10 @@ async function append(
 			// The duplicate check ran up front for the whole batch; a resend that raced in since is caught here before
 			// any refusal (rare), and before an accept by the primary key (the UniqueConstraintViolation path below).
 			const refuse = async (why: string) => (await duplicateOrReused(tx, s.id, p.fp, runId)) ?? refused(s.id, why);
+			// The tablet was read once for the batch: whether it was revoked since is decided here, under the lock.
+			const tablet = enrolledDeviceOf(s);
+			const revoked = tablet ? await revokedRefusal(tx, tablet) : null;
+			if (revoked) return markHeld(await refuse(revoked), 'device_revoked');
 			// a released run takes no record; a rework run takes records on its rework steps only.
 			const late = await lateRecordRefusal(tx, run, s);
 			if (late) return refuse(late);
