@@ -4,6 +4,7 @@
  * To add a bench, write `tests/bench/<name>.bench.ts` exporting `title` and `main(medianMs)`,
  * and list it in `modules` below. Benches that need PostgreSQL share one cluster (`bench-db.ts`).
  */
+import * as audit from './audit.bench';
 import { closeBenchDb } from './bench-db';
 import * as offline from './offline.bench';
 import * as procedure from './procedure.bench';
@@ -27,10 +28,12 @@ export async function medianMs(fn: () => unknown, runs = 7, warmup = 2): Promise
 	return times[Math.floor(times.length / 2)];
 }
 
-const modules: BenchModule[] = [procedure, runner, offline];
+const modules: BenchModule[] = [procedure, runner, offline, audit];
+/** `BENCH_ONLY=runner` (comma-separated words) runs only the modules whose title has one of them (iterating). */
+const only = process.env.BENCH_ONLY?.split(',').map((w) => w.trim().toLowerCase());
 
 try {
-	for (const m of modules) {
+	for (const m of modules.filter((x) => !only || only.some((w) => x.title.toLowerCase().includes(w)))) {
 		console.log(`\n== ${m.title}`);
 		await m.main(medianMs);
 	}

@@ -112,9 +112,9 @@ function fail(
 	return { ok: false, index, recordId, reason, expected, found, message };
 }
 
-function safeHash(r: StoredRecord): string | null {
+function safeHash(r: StoredRecord, hash: (r: LedgerRecord) => string): string | null {
 	try {
-		return recordHash(r);
+		return hash(r);
 	} catch {
 		return null; // a body that can no longer be encoded cannot be the one that was signed
 	}
@@ -128,8 +128,14 @@ const short = (hash: string | null) => (hash === null ? 'none' : hash.slice(0, 1
  * `records` are one run's records in stored order (`ORDER BY seq`). Per record, in this order: duplicate id, other
  * run, hash, fork, numbering, link — so an edited record is reported as edited, not as the break it causes.
  * Deleting the last records cannot be seen from the chain alone; {@link verifyAgainstAnchor} sees it.
+ *
+ * `hash` is {@link recordHash} unless the caller passes an equal one (the server passes node:crypto's, as to
+ * {@link appendTo}).
  */
-export function verifyChain(records: readonly StoredRecord[]): ChainVerification {
+export function verifyChain(
+	records: readonly StoredRecord[],
+	hash: (r: LedgerRecord) => string = recordHash
+): ChainVerification {
 	const ids = new Map<string, number>();
 	const followers = new Map<string | null, number>();
 	for (let i = 0; i < records.length; i++) {
@@ -160,7 +166,7 @@ export function verifyChain(records: readonly StoredRecord[]): ChainVerification
 			);
 		}
 
-		const computed = safeHash(r);
+		const computed = safeHash(r, hash);
 		if (computed !== r.hash) {
 			return fail(
 				i,
@@ -230,13 +236,14 @@ export function verifyAgainstAnchor(records: readonly StoredRecord[], anchor: Ch
 
 /**
  * {@link verifyAgainstAnchor} for several anchors (e.g. every release PDF and digest of a run); the failure of the
- * earliest anchor that does not match is reported.
+ * earliest anchor that does not match is reported. `hash` as for {@link verifyChain}.
  */
 export function verifyAgainstAnchors(
 	records: readonly StoredRecord[],
-	anchors: readonly ChainAnchor[]
+	anchors: readonly ChainAnchor[],
+	hash: (r: LedgerRecord) => string = recordHash
 ): ChainVerification {
-	const chain = verifyChain(records);
+	const chain = verifyChain(records, hash);
 	if (!chain.ok) return chain;
 	for (const anchor of [...anchors].sort((a, b) => a.count - b.count)) {
 		if (!Number.isInteger(anchor.count) || anchor.count < 1) {

@@ -5,14 +5,12 @@
  */
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { verifyAgainstAnchors, verifyChain, type ChainAnchor, type ChainFailureReason } from '../../ledger/chain';
-import type { Procedure } from '../../procedure/model';
 import type { RoleName } from '../../accounts/schema';
 import {
 	LedgerRecord,
 	Run,
 	type AnchorPlace,
 	type ILedgerAnchor,
-	type ILedgerRecord,
 	type IJob,
 	type IProcedure,
 	type IProcedureVersion,
@@ -20,9 +18,11 @@ import {
 	type IUser,
 	type RunState
 } from '../db/entities';
+import type { StoredRecord } from '../../ledger/record';
+import { serverRecordHash } from '../ledger-hash';
 import * as anchors from '../repositories/anchors';
-import * as ledger from '../repositories/ledger';
-import * as runs from '../repositories/runs';
+import * as ledgerRead from '../repositories/ledger-read';
+import * as runRecordRead from '../repositories/run-record-read';
 
 /** Roles that may verify chains and record anchors. */
 export const VERIFY_ROLES: RoleName[] = ['quality', 'admin'];
@@ -57,11 +57,11 @@ function toChainAnchor(a: ILedgerAnchor): ChainAnchor {
 	};
 }
 
-function check(runId: string, rows: ILedgerRecord[], runAnchors: ILedgerAnchor[]): RunVerification {
-	const records = rows.map(ledger.toStored);
+/** Hashes with node:crypto (`serverRecordHash`, held equal to the pure `recordHash` by ledger-hash.test.ts). */
+function check(runId: string, records: StoredRecord[], runAnchors: ILedgerAnchor[]): RunVerification {
 	const result = runAnchors.length
-		? verifyAgainstAnchors(records, runAnchors.map(toChainAnchor))
-		: verifyChain(records);
+		? verifyAgainstAnchors(records, runAnchors.map(toChainAnchor), serverRecordHash)
+		: verifyChain(records, serverRecordHash);
 	if (result.ok) return { runId, ok: true, head: result.head, count: result.count, anchors: runAnchors.length };
 	return {
 		runId,
@@ -78,7 +78,7 @@ function check(runId: string, rows: ILedgerRecord[], runAnchors: ILedgerAnchor[]
 export async function verifyRun(em: EntityManager, runId: string): Promise<RunVerification | null> {
 	const run = await em.findOne(Run, { id: runId });
 	if (!run) return null;
-	return check(runId, await ledger.listForRun(em, runId), await anchors.listForRun(em, runId));
+	return check(runId, await ledgerRead.chainOf(em, runId), await anchors.listForRun(em, runId));
 }
 
 export interface AllVerification {
@@ -90,7 +90,11 @@ export interface AllVerification {
 	failures: Extract<RunVerification, { ok: false }>[];
 }
 
-/** {@link verifyRun} over every run, one run at a time so memory stays bounded by the largest run. */
+/**
+ * {@link verifyRun} over every run: the chains read as plain rows in `(run_id, seq)` pages (`ledger-read`), so
+ * memory stays bounded by a page and the largest run; runs without records are checked against their anchors too.
+ * Failures are listed in the order the runs were created.
+ */
 export async function verifyAll(em: EntityManager): Promise<AllVerification> {
 	const ids = (await em.find(Run, {}, { fields: ['id'], orderBy: { createdAt: 'asc' } })).map((r) => r.id);
 	const byRun = new Map<string, ILedgerAnchor[]>();
@@ -99,17 +103,23 @@ export async function verifyAll(em: EntityManager): Promise<AllVerification> {
 		byRun.set(id, [...(byRun.get(id) ?? []), a]);
 	}
 	const out: AllVerification = { runs: ids.length, intact: 0, failed: 0, records: 0, failures: [] };
-	for (const id of ids) {
-		const fork = em.fork({ clear: true });
-		const rows = await ledger.listForRun(fork, id);
-		out.records += rows.length;
-		const v = check(id, rows, byRun.get(id) ?? []);
+	const tally = (v: RunVerification) => {
 		if (v.ok) out.intact += 1;
 		else {
 			out.failed += 1;
 			out.failures.push(v);
 		}
+	};
+	const order = new Map(ids.map((id, i) => [id, i]));
+	const seen = new Set<string>();
+	for await (const chain of ledgerRead.chainsInOrder(em)) {
+		if (!order.has(chain.runId)) continue; // a run created after the list was read: the next verify sees it
+		seen.add(chain.runId);
+		out.records += chain.records.length;
+		tally(check(chain.runId, chain.records, byRun.get(chain.runId) ?? []));
 	}
+	for (const id of ids) if (!seen.has(id)) tally(check(id, [], byRun.get(id) ?? []));
+	out.failures.sort((a, b) => order.get(a.runId)! - order.get(b.runId)!);
 	return out;
 }
 
@@ -196,7 +206,7 @@ export interface OpenFinding {
 }
 
 type Body = Record<string, unknown>;
-const bodyOf = (r: ILedgerRecord): Body =>
+const bodyOf = (r: { body: unknown }): Body =>
 	r.body && typeof r.body === 'object' && !Array.isArray(r.body) ? (r.body as Body) : {};
 const str = (v: unknown): string | null => (typeof v === 'string' ? v : null);
 
@@ -364,26 +374,21 @@ function recordText(kind: string, b: Body): string | null {
 
 /** Every record of the run in chain order, as the run record page and its print show it; null when no such run. */
 export async function runRecord(em: EntityManager, runId: string): Promise<RunRecordView | null> {
-	const run = await runs.findById(em, runId);
+	const [run, rows] = await Promise.all([runRecordRead.findHead(em, runId), runRecordRead.listRecords(em, runId)]);
 	if (!run) return null;
-	await em.populate(run, ['procedureVersion.procedure']);
-	const version = run.procedureVersion as unknown as IProcedureVersion;
-	const model = version.model as unknown as Procedure;
-	const job = run.job as unknown as IJob;
 	const stepTitle = (i: unknown) => {
 		if (typeof i !== 'number') return null;
-		const s = model.steps.find((x) => x.index === i);
+		const s = run.model.steps.find((x) => x.index === i);
 		return s ? `Step ${i + 1}: ${s.title}` : `Step ${i + 1}`;
 	};
-	const rows = await ledger.listForRun(em, runId);
 	return {
 		id: run.id,
-		jobId: job.id,
-		jobNumber: job.jobNumber,
-		unit: `${job.unitModel} · serial ${job.unitSerial}`,
-		procedure: (version.procedure as unknown as IProcedure).title,
-		version: version.number,
-		technician: (run.assignedTo as unknown as IUser).name,
+		jobId: run.jobId,
+		jobNumber: run.jobNumber,
+		unit: `${run.unitModel} · serial ${run.unitSerial}`,
+		procedure: run.procedure,
+		version: run.version,
+		technician: run.technician,
 		state: run.state,
 		records: rows.map((r) => {
 			const b = bodyOf(r);

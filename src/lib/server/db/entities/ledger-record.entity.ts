@@ -20,8 +20,23 @@ export const LedgerRecord = defineEntity({
 	],
 	// Audit search (issue 8): records by signer and time, and `body @> …` containment for lot trace and suspect tool.
 	indexes: [
-		{ properties: ['signerId', 'serverTime'], name: 'ledger_record_signer_time_index' },
-		{ properties: ['serverTime'], name: 'ledger_record_server_time_index' },
+		// Index-only at scale (migration `…_audit_scale_indexes`): the runs a signer signed in a date range, a run's
+		// first/last time, its findings.
+		{
+			name: 'ledger_record_signer_time_run_index',
+			expression:
+				'create index "ledger_record_signer_time_run_index" on "ledger_record" ("signer_id", "server_time") include ("run_id")'
+		},
+		{
+			name: 'ledger_record_server_time_run_index',
+			expression:
+				'create index "ledger_record_server_time_run_index" on "ledger_record" ("server_time") include ("run_id")'
+		},
+		{ properties: ['run', 'serverTime'], name: 'ledger_record_run_time_index' },
+		{
+			name: 'ledger_record_finding_index',
+			expression: `create index "ledger_record_finding_index" on "ledger_record" ("run_id") where "kind" = 'finding'`
+		},
 		{
 			name: 'ledger_record_body_path_index',
 			expression: 'create index "ledger_record_body_path_index" on "ledger_record" using gin ("body" jsonb_path_ops)'
