@@ -4,7 +4,7 @@ import { mustParse } from '$lib/procedure/test-helpers';
 import { landedView, landLocally, type LandedRecord } from './landed';
 import { getRun, openOfflineStore, saveRun } from './offline-store';
 import type { OpenedRun } from './runner-source';
-import { freshDbName, makeRun } from './test-helpers';
+import { freshDbName, makeRun, runnerViewFor } from './test-helpers';
 
 const confirm = (n: number, extra = '') =>
 	`## Check item ${n}\n\n${extra}\`\`\`confirm c${n}\nprompt: Item ${n} checked.\n\`\`\`\n`;
@@ -13,40 +13,11 @@ const model = mustParse(source);
 const T = Date.UTC(2026, 11, 2, 9, 0);
 
 function view(records: OpenedRun['view']['run']['records'] = [], state = 'in_progress'): OpenedRun['view'] {
-	const base = makeRun('run-1');
-	return {
-		run: {
-			id: 'run-1',
-			state,
-			jobId: 'job-1',
-			jobNumber: base.jobNumber,
-			procedureVersionId: 'pv-1',
-			procedureId: 'proc-1',
-			versionNumber: 1,
-			contentHash: base.contentHash,
-			assignedTo: { id: 'u-1', name: 'Rowan Tech' },
-			startedBy: { id: 'u-2', name: 'Sam Lead' },
-			headHash: 'h'.repeat(64),
-			recordCount: records.length,
-			createdAt: '2026-12-01T07:00:00.000Z',
-			records
-		},
-		title: 'Landing',
-		family: 'KX-7 (invented)',
-		model,
-		stepHtml: ['', '', ''],
-		tools: [],
-		toolChoices: {},
-		signers: [],
-		verifiers: [],
-		versionNotice: null,
-		canSign: true,
-		entryContext: { torqueTools: {}, lots: {} },
-		records: { leads: [], workers: [], handover: null },
-		source,
-		images: [],
-		serverTime: T
-	} as OpenedRun['view'];
+	return runnerViewFor(
+		'run-1',
+		{ title: 'Landing', family: 'KX-7 (invented)', model, stepHtml: ['', '', ''], source, serverTime: T },
+		{ state, procedureVersionId: 'pv-1', headHash: 'h'.repeat(64), recordCount: records.length, records }
+	) as OpenedRun['view'];
 }
 
 const signoff = (stepIndex: number, over: Partial<LandedRecord> = {}): LandedRecord => ({

@@ -5,46 +5,16 @@ import type { OfflineRunnerView } from '$lib/server/services/offline.service';
 import { applyAnswers, clearRefused, enqueue } from './outbox';
 import { getRun, openOfflineStore } from './offline-store';
 import { htmlWithStoredImages, makeAvailable, NotOnThisTablet, openRun, type FetchLike } from './runner-source';
-import { freshDbName, makeRun, recordMaker } from './test-helpers';
+import { freshDbName, recordMaker, runnerViewFor } from './test-helpers';
 
 const IMAGE_ID = '0190f5d2-6c1e-7a51-9c2b-3f4e5d6c7b8a';
 
 function viewFor(runId: string, overrides: Partial<OfflineRunnerView> = {}): OfflineRunnerView {
-	const base = makeRun(runId);
-	return {
-		run: {
-			id: runId,
-			state: 'in_progress',
-			jobId: 'job-1',
-			jobNumber: base.jobNumber,
-			procedureVersionId: base.procedureVersionId,
-			procedureId: 'proc-1',
-			versionNumber: 1,
-			contentHash: base.contentHash,
-			assignedTo: { id: 'u-1', name: 'Rowan Tech' },
-			startedBy: { id: 'u-2', name: 'Sam Lead' },
-			headHash: null,
-			recordCount: 0,
-			createdAt: '2026-12-01T07:00:00.000Z',
-			records: []
-		},
-		title: base.model.meta.title,
-		family: base.model.meta.family,
-		model: base.model,
+	return runnerViewFor(runId, {
 		stepHtml: [`<p>Step</p><img src="/images/${IMAGE_ID}" alt="plate">`],
-		tools: [],
-		toolChoices: {},
-		signers: [],
-		verifiers: [],
-		versionNotice: null,
-		canSign: true,
-		entryContext: { torqueTools: {}, lots: {} },
-		records: { leads: [], workers: [], handover: null },
-		source: base.source,
 		images: [{ id: IMAGE_ID, sha256: 'a'.repeat(64) }],
-		serverTime: 1_800_000_000_000,
 		...overrides
-	};
+	});
 }
 
 /** A fake server: the runner view and one picture, or down. */

@@ -1,16 +1,8 @@
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
 import { seededRandom } from './backoff';
-import { PROBE_CAP_MS, healthProbe, syncOnTriggers, type SyncReason, type SyncResult } from './sync';
+import { PROBE_CAP_MS, healthProbe, nothingSent, syncOnTriggers, type SyncReason, type SyncResult } from './sync';
 
-const idle: SyncResult = {
-	status: 'done',
-	sent: 0,
-	accepted: 0,
-	duplicate: 0,
-	refused: 0,
-	photosStored: 0,
-	photosFailed: 0
-};
+const idle: SyncResult = nothingSent();
 // A failed exchange with records waiting, the regular retry five minutes away (the back-off's cap).
 const failedWaiting = (): SyncResult => ({ ...idle, status: 'failed', sent: 3, nextAttemptAt: Date.now() + 300_000 });
 

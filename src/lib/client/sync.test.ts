@@ -12,7 +12,7 @@ import {
 	seededRandom,
 	type OutboxRecord
 } from './outbox';
-import { parseBatchReply, syncOnTriggers, syncOnce, type SyncResult, type Timers } from './sync';
+import { nothingSent, parseBatchReply, syncOnTriggers, syncOnce, type SyncResult, type Timers } from './sync';
 import { fakeServer, freshDbName, recordMaker, tally } from './test-helpers';
 
 const T0 = Date.UTC(2026, 11, 1, 8, 0);
@@ -269,15 +269,7 @@ function fakeTimers() {
 }
 
 describe('syncOnTriggers', () => {
-	const idle: SyncResult = {
-		status: 'done',
-		sent: 0,
-		accepted: 0,
-		duplicate: 0,
-		refused: 0,
-		photosStored: 0,
-		photosFailed: 0
-	};
+	const idle: SyncResult = nothingSent();
 	const flush = () => new Promise((r) => setTimeout(r, 0));
 
 	it('syncs at start, on online (forced), on the interval, at the retry time and on demand; stop removes all', async () => {

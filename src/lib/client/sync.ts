@@ -83,6 +83,11 @@ async function failed(deps: SyncDeps, error: string): Promise<number> {
 	return meta.nextAttemptAt!;
 }
 
+/** A finished sync that sent nothing: every count zero. */
+export function nothingSent(): SyncResult {
+	return { status: 'done', sent: 0, accepted: 0, duplicate: 0, refused: 0, photosStored: 0, photosFailed: 0 };
+}
+
 /**
  * Drains the outbox once: claims the next batch, sends it, applies the per-record answers, and repeats until the
  * outbox is empty; then uploads the photos whose records were stored. On a network error the batch is released
@@ -91,15 +96,7 @@ async function failed(deps: SyncDeps, error: string): Promise<number> {
  */
 export async function syncOnce(deps: SyncDeps): Promise<SyncResult> {
 	const { store } = deps;
-	const result: SyncResult = {
-		status: 'done',
-		sent: 0,
-		accepted: 0,
-		duplicate: 0,
-		refused: 0,
-		photosStored: 0,
-		photosFailed: 0
-	};
+	const result = nothingSent();
 	if (running.has(store)) return { ...result, status: 'busy' };
 	running.add(store);
 	try {

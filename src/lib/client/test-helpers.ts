@@ -1,6 +1,7 @@
 /** Test-data factory for the client store tests: unique databases, records, runs and a scriptable fake server. */
 import { doc, mustParse } from '$lib/procedure/test-helpers';
 import { contentHash } from '$lib/procedure';
+import type { OfflineRunnerView } from '$lib/server/services/offline.service';
 import type { OfflineRun } from './offline-store';
 import type { OutboxRecord, RecordAnswer } from './outbox';
 import type { BatchReply } from './sync';
@@ -130,4 +131,48 @@ export function tally(ids: string[]): Record<string, number> {
 	const out: Record<string, number> = {};
 	for (const id of ids) out[id] = (out[id] ?? 0) + 1;
 	return out;
+}
+
+/** A runner view as `GET /api/runs/:id/runner` answers it, for `makeRun(runId)`'s procedure; `run` overrides its run. */
+export function runnerViewFor(
+	runId: string,
+	overrides: Partial<OfflineRunnerView> = {},
+	run: Partial<OfflineRunnerView['run']> = {}
+): OfflineRunnerView {
+	const base = makeRun(runId);
+	return {
+		run: {
+			id: runId,
+			state: 'in_progress',
+			jobId: 'job-1',
+			jobNumber: base.jobNumber,
+			procedureVersionId: base.procedureVersionId,
+			procedureId: 'proc-1',
+			versionNumber: 1,
+			contentHash: base.contentHash,
+			assignedTo: { id: 'u-1', name: 'Rowan Tech' },
+			startedBy: { id: 'u-2', name: 'Sam Lead' },
+			headHash: null,
+			recordCount: 0,
+			createdAt: '2026-12-01T07:00:00.000Z',
+			records: [],
+			...run
+		},
+		title: base.model.meta.title,
+		family: base.model.meta.family,
+		model: base.model,
+		stepHtml: [],
+		tools: [],
+		toolChoices: {},
+		signers: [],
+		verifiers: [],
+		versionNotice: null,
+		canSign: true,
+		entryContext: { torqueTools: {}, lots: {} },
+		records: { leads: [], workers: [], handover: null },
+		source: base.source,
+		images: [],
+		serverTime: 1_800_000_000_000,
+		...overrides
+	};
 }

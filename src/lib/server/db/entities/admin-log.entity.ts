@@ -7,6 +7,8 @@ import { defineEntity, p, type InferEntity } from '@mikro-orm/core';
 export const AdminLog = defineEntity({
 	name: 'AdminLog',
 	tableName: 'admin_log',
+	// The entries about one subject: its history page, and the submit path's "already logged?" guard per record.
+	indexes: [{ properties: ['subjectType', 'subjectId', 'action'], name: 'admin_log_subject_index' }],
 	properties: {
 		id: p.bigint('string').primary().autoincrement(),
 		at: p.datetime().defaultRaw('now()'),
