@@ -12,7 +12,10 @@ const source = `---\ntitle: Landing\nfamily: KX-7 (invented)\npurpose: Unit test
 const model = mustParse(source);
 const T = Date.UTC(2026, 11, 2, 9, 0);
 
-function view(records: OpenedRun['view']['run']['records'] = [], state = 'in_progress'): OpenedRun['view'] {
+function view(
+	records: OpenedRun['view']['run']['records'] = [],
+	state: OpenedRun['view']['run']['state'] = 'in_progress'
+): OpenedRun['view'] {
 	return runnerViewFor(
 		'run-1',
 		{ title: 'Landing', family: 'KX-7 (invented)', model, stepHtml: ['', '', ''], source, serverTime: T },
