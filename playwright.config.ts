@@ -29,7 +29,9 @@ export default defineConfig({
 				'--no-first-run'
 			]
 		},
-		trace: 'retain-on-failure'
+		// A failure keeps its trace with DOM snapshots (the page at each step) but no screencast: recording one keeps the
+		// compositor painting and encoding frames the whole test (6,000 JPEGs in the chaos test), CPU a 2-core CI lacks.
+		trace: { mode: 'retain-on-failure', screenshots: false }
 	},
 	webServer: [
 		{

@@ -4,7 +4,8 @@
  *   1. static gates: ESLint, Prettier, svelte-check (types + Svelte warnings)
  *   2. vitest: unit (pure modules) and integration (real PostgreSQL, migrations applied)
  *   3. vite build, then Playwright on the built app in Debian's Chromium
- * `npm test -- --skip-static` or `--only=unit|integration|e2e` narrow it while working.
+ * `npm test -- --skip-static` or `--only=unit|integration|e2e` narrow it while working; `--reuse-build` skips the
+ * vite build and runs Playwright on the one already in BENCHSTAMP_BUILD_DIR (when only tests changed).
  */
 import { spawn } from 'node:child_process';
 import { chmod, mkdtemp, rm } from 'node:fs/promises';
@@ -73,7 +74,9 @@ async function main() {
 			await runDemoSeed(demo.appUrl);
 			const prod = await cluster('benchstamp_prod');
 			await migrate(prod.ownerUrl, prod.appUrl);
-			await run('vite build', process.execPath, [join(root, 'node_modules', 'vite', 'bin', 'vite.js'), 'build']);
+			// `--reuse-build` (while working on tests only): Playwright on the build already in BENCHSTAMP_BUILD_DIR.
+			if (!args.slice(0, args.includes('--') ? args.indexOf('--') : undefined).includes('--reuse-build'))
+				await run('vite build', process.execPath, [join(root, 'node_modules', 'vite', 'bin', 'vite.js'), 'build']);
 			await run('browser tests (Playwright, Chromium)', bin('playwright'), ['test', ...playwrightArgs], {
 				E2E_DATABASE_URL: demo.appUrl,
 				E2E_OWNER_DATABASE_URL: demo.ownerUrl,
