@@ -148,24 +148,35 @@ function describe(v: unknown): string {
 }
 
 /** Write `item`, the member `segment` of its parent; a refusal below gets `segment` added to its path. */
-function writeChild(item: unknown, segment: string, seen: Set<object>): string {
+function writeChild(item: unknown, segment: string, seen: Set<object>, out: string[]): void {
 	try {
-		return write(item, seen);
+		write(item, seen, out);
 	} catch (e) {
 		if (e instanceof Refusal) e.segments.push(segment);
 		throw e;
 	}
 }
 
-function write(v: unknown, seen: Set<object>): string {
-	if (v === null) return 'null';
+/**
+ * Appends the canonical text of `v` to `out` as pieces, joined once at the end: building the text by `+=` made a
+ * deep rope of short strings that cost 3–4× more to build and about 10× more to hash (V8 flattens it first) —
+ * measured on the audit bench's record bodies.
+ */
+function write(v: unknown, seen: Set<object>, out: string[]): void {
+	if (v === null) {
+		out.push('null');
+		return;
+	}
 	switch (typeof v) {
 		case 'boolean':
-			return v ? 'true' : 'false';
+			out.push(v ? 'true' : 'false');
+			return;
 		case 'number':
-			return numberOrRefuse(v);
+			out.push(numberOrRefuse(v));
+			return;
 		case 'string':
-			return stringOrRefuse(v);
+			out.push(stringOrRefuse(v));
+			return;
 		case 'object':
 			break;
 		case 'undefined':
@@ -176,25 +187,25 @@ function write(v: unknown, seen: Set<object>): string {
 	const obj = v as object;
 	if (seen.has(obj)) throw new Refusal('the value refers to itself (a cycle)');
 	seen.add(obj);
-	let out: string;
 	if (Array.isArray(obj)) {
-		out = '[';
+		out.push('[');
 		for (let i = 0; i < obj.length; i++) {
 			if (!(i in obj)) throw new Refusal('the array has a hole here', String(i));
 			const item: unknown = obj[i];
 			if (item === undefined) {
 				throw new Refusal('undefined inside an array is not a JSON value', String(i));
 			}
-			out += (i ? ',' : '') + writeChild(item, String(i), seen);
+			if (i) out.push(',');
+			writeChild(item, String(i), seen, out);
 		}
-		out += ']';
+		out.push(']');
 	} else {
 		if (!isPlainObject(obj)) throw new Refusal(`${describe(obj)} is not a plain JSON object`);
 		const record = obj as Record<string, unknown>;
 		// The default sort compares strings by UTF-16 code units (ECMAScript IsLessThan), exactly RFC 8785 §3.2.3's
 		// order — not code points, not locale.
 		const keys = Object.keys(record).sort();
-		out = '{';
+		out.push('{');
 		let first = true;
 		for (const key of keys) {
 			const item = record[key];
@@ -206,13 +217,13 @@ function write(v: unknown, seen: Set<object>): string {
 				if (e instanceof Refusal) e.segments.push(key);
 				throw e;
 			}
-			out += (first ? '' : ',') + name + ':' + writeChild(item, key, seen);
+			out.push(first ? name : ',' + name, ':');
+			writeChild(item, key, seen, out);
 			first = false;
 		}
-		out += '}';
+		out.push('}');
 	}
 	seen.delete(obj);
-	return out;
 }
 
 /**
@@ -221,11 +232,13 @@ function write(v: unknown, seen: Set<object>): string {
  * @throws {JcsError} for anything that is not plain JSON (see the module comment), naming where it is.
  */
 export function canonicalize(value: unknown): string {
+	const out: string[] = [];
 	try {
-		return write(value, new Set());
+		write(value, new Set(), out);
 	} catch (e) {
 		throw asJcsError(e, '');
 	}
+	return out.join('');
 }
 
 /** Short alias of {@link canonicalize}. */
