@@ -21,6 +21,9 @@ const bin = (name: string) => join(root, 'node_modules', '.bin', name);
 const args = process.argv.slice(2);
 // Anything after `--` goes to Playwright, e.g. `tsx scripts/test.ts --only=e2e -- tests/e2e/library.spec.ts`.
 const playwrightArgs = args.includes('--') ? args.slice(args.indexOf('--') + 1) : [];
+const ownArgs = args.includes('--') ? args.slice(0, args.indexOf('--')) : args;
+// While working on tests only: Playwright on the build already in BENCHSTAMP_BUILD_DIR.
+const reuseBuild = ownArgs.includes('--reuse-build');
 const only = args.find((a) => a.startsWith('--only='))?.slice(7);
 const wants = (layer: string) => !only || only.split(',').includes(layer);
 
@@ -74,8 +77,7 @@ async function main() {
 			await runDemoSeed(demo.appUrl);
 			const prod = await cluster('benchstamp_prod');
 			await migrate(prod.ownerUrl, prod.appUrl);
-			// `--reuse-build` (while working on tests only): Playwright on the build already in BENCHSTAMP_BUILD_DIR.
-			if (!args.slice(0, args.includes('--') ? args.indexOf('--') : undefined).includes('--reuse-build'))
+			if (!reuseBuild)
 				await run('vite build', process.execPath, [join(root, 'node_modules', 'vite', 'bin', 'vite.js'), 'build']);
 			await run('browser tests (Playwright, Chromium)', bin('playwright'), ['test', ...playwrightArgs], {
 				E2E_DATABASE_URL: demo.appUrl,
