@@ -19,13 +19,16 @@ import { freePort, startCluster, stopCluster } from './lib/postgres';
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 const bin = (name: string) => join(root, 'node_modules', '.bin', name);
 const args = process.argv.slice(2);
-// Anything after `--` goes to Playwright, e.g. `tsx scripts/test.ts --only=e2e -- tests/e2e/library.spec.ts`.
-const playwrightArgs = args.includes('--') ? args.slice(args.indexOf('--') + 1) : [];
+// Anything after `--` goes to the test runner of the one layer asked for (Playwright unless `--only=integration`), e.g.
+// `tsx scripts/test.ts --only=e2e -- tests/e2e/library.spec.ts` or `--only=integration -- tests/integration/jobs`.
+const passArgs = args.includes('--') ? args.slice(args.indexOf('--') + 1) : [];
 const ownArgs = args.includes('--') ? args.slice(0, args.indexOf('--')) : args;
 // While working on tests only: Playwright on the build already in BENCHSTAMP_BUILD_DIR.
 const reuseBuild = ownArgs.includes('--reuse-build');
 const only = args.find((a) => a.startsWith('--only='))?.slice(7);
 const wants = (layer: string) => !only || only.split(',').includes(layer);
+const integrationArgs = only === 'integration' ? passArgs : [];
+const playwrightArgs = only === 'integration' ? [] : passArgs;
 
 function run(label: string, cmd: string, cmdArgs: string[], env: NodeJS.ProcessEnv = {}): Promise<void> {
 	const started = Date.now();
@@ -65,11 +68,16 @@ async function main() {
 		const cluster = (database: string) => startCluster({ baseDir, port, database, ephemeral: true });
 		if (wants('integration')) {
 			const db = await cluster('benchstamp_test');
-			await run('integration tests (PostgreSQL)', bin('vitest'), ['run', '--project', 'integration'], {
-				TEST_DATABASE_URL: db.appUrl,
-				TEST_OWNER_DATABASE_URL: db.ownerUrl,
-				TEST_SUPERUSER_DATABASE_URL: db.superuserUrl
-			});
+			await run(
+				'integration tests (PostgreSQL)',
+				bin('vitest'),
+				['run', '--project', 'integration', ...integrationArgs],
+				{
+					TEST_DATABASE_URL: db.appUrl,
+					TEST_OWNER_DATABASE_URL: db.ownerUrl,
+					TEST_SUPERUSER_DATABASE_URL: db.superuserUrl
+				}
+			);
 		}
 		if (wants('e2e')) {
 			const demo = await cluster('benchstamp_e2e');

@@ -2,9 +2,9 @@
  * Read-only SQL over runs and the jsonb bodies of their ledger records, for the quality lead's search, lot trace and
  * suspect-tool questions. Every value travels as a bound parameter (`?`); only whitelisted column names and fixed
  * SQL fragments are ever put into the text. Containment (`body @> ?::jsonb`) uses the GIN `jsonb_path_ops` index of
- * migration `…_audit_search_indexes`; signer and time use `(signer_id, server_time) include (run_id)` and
- * `(server_time) include (run_id)`, a run's first/last time and findings `(run_id, server_time) include (kind)`
- * (migration `…_audit_scale_indexes`), all index-only.
+ * migration `…_audit_search_indexes`. A run's first/last time and finding count come from `run_summary`, and the
+ * runs a person signed on given days from `run_signer_day`, both kept by a trigger on the ledger (migration
+ * `…_run_summary_trigger`); dates alone use `(server_time) include (run_id)` (migration `…_audit_scale_indexes`).
  */
 import type { EntityManager } from '@mikro-orm/postgresql';
 
@@ -17,7 +17,7 @@ export const RUN_SORTS = {
 	procedure: 'p.title',
 	technician: 'u.name',
 	records: 'r.record_count',
-	findings: 's.findings'
+	findings: 'coalesce(s.finding_count, 0)'
 } as const;
 export type RunSort = keyof typeof RUN_SORTS;
 
@@ -99,28 +99,30 @@ function containsAny(alias: string, probes: string[]): string {
 	return `${alias}.kind <> 'attempt' and (${probes.map(() => `${alias}.body @> ?::jsonb`).join(' or ')})`;
 }
 
-/** The ids of the runs with a record signed by `f.signerId` (anyone when absent) within `f.from`–`f.to`. */
+/**
+ * The ids of the runs with a record signed by `f.signerId` (anyone's when absent) within `f.from`–`f.to`: with a
+ * signer, a range of `run_signer_day`'s primary key; with dates alone, an index-only scan of
+ * `(server_time) include (run_id)`.
+ */
 async function runsSignedIn(em: EntityManager, f: RunFilter): Promise<string[]> {
 	const conds: string[] = [];
 	const params: unknown[] = [];
+	const [table, time] = f.signerId ? ['run_signer_day d', 'd.day'] : ['ledger_record d', 'd.server_time'];
 	if (f.signerId) {
-		conds.push('l.signer_id = ?');
+		conds.push('d.signer_id = ?');
 		params.push(f.signerId);
 	}
 	if (f.from) {
-		conds.push('l.server_time >= ?');
-		params.push(`${f.from}T00:00:00.000Z`);
+		conds.push(`${time} >= ?`);
+		params.push(f.signerId ? f.from : `${f.from}T00:00:00.000Z`);
 	}
 	if (f.to) {
-		conds.push('l.server_time < ?');
-		params.push(nextDay(f.to));
+		conds.push(f.signerId ? `${time} <= ?` : `${time} < ?`);
+		params.push(f.signerId ? f.to : nextDay(f.to));
 	}
 	const rows = await em
 		.getConnection()
-		.execute<{ run_id: string }[]>(
-			`select distinct l.run_id from ledger_record l where ${conds.join(' and ')}`,
-			params
-		);
+		.execute<{ run_id: string }[]>(`select distinct d.run_id from ${table} where ${conds.join(' and ')}`, params);
 	return rows.map((r) => r.run_id);
 }
 
@@ -129,10 +131,9 @@ export async function searchRuns(em: EntityManager, f: RunFilter): Promise<{ row
 	const where: string[] = [];
 	const params: unknown[] = [];
 	if (f.signerId || f.from || f.to) {
-		// The runs with a matching record, first and on their own: an index-only scan of
-		// `(signer_id, server_time) include (run_id)` (or of `(server_time) include (run_id)`), whose result the main
-		// query then joins by primary key. Left inside as a semi-join, the planner could not tell how few runs it
-		// yields and hashed every run and job (audit bench, 1M records).
+		// The runs first and on their own, then joined by primary key. Left inside as a semi-join, the planner could
+		// not tell how few runs it yields and hashed every run and job (audit bench, 1M records; tried again with
+		// `run_signer_day` as the inner query: 8.4 ms against 4.4 ms at 100k records).
 		const runIds = await runsSignedIn(em, f);
 		if (!runIds.length) return { rows: [], total: 0 };
 		where.push('r.id = any(?::uuid[])');
@@ -146,7 +147,7 @@ export async function searchRuns(em: EntityManager, f: RunFilter): Promise<{ row
 		where.push('pv.number = ?');
 		params.push(f.version);
 	}
-	if (f.findings) where.push(f.findings === 'yes' ? 's.findings > 0' : 's.findings = 0');
+	if (f.findings) where.push(f.findings === 'yes' ? 's.finding_count > 0' : 'coalesce(s.finding_count, 0) = 0');
 	if (f.conflicts)
 		where.push(
 			`exists (select 1 from ledger_record l3 where l3.run_id = r.id and l3.kind = 'signoff' and l3.body->>'conflictsWith' is not null)`
@@ -168,17 +169,13 @@ export async function searchRuns(em: EntityManager, f: RunFilter): Promise<{ row
 	const sql = `
 		select r.id, r.state, r.record_count, j.id as job_id, j.job_number, j.unit_serial, j.unit_model,
 			p.id as procedure_id, p.title as procedure, pv.number as version, u.name as technician,
-			s.findings, s.first_at, s.last_at, count(*) over () as total
+			coalesce(s.finding_count, 0) as findings, s.first_at, s.last_at, count(*) over () as total
 		from run r
 		join job j on j.id = r.job_id
 		join procedure_version pv on pv.id = r.procedure_version_id
 		join procedure p on p.id = pv.procedure_id
 		join app_user u on u.id = r.assigned_to_id
-		cross join lateral (
-			select (select count(*) from ledger_record lf where lf.run_id = r.id and lf.kind = 'finding') as findings,
-				(select min(lt.server_time) from ledger_record lt where lt.run_id = r.id) as first_at,
-				(select max(lt.server_time) from ledger_record lt where lt.run_id = r.id) as last_at
-		) s
+		left join run_summary s on s.run_id = r.id
 		${where.length ? `where ${where.join(' and ')}` : ''}
 		order by ${order}
 		limit ? offset ?`;

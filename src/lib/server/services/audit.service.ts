@@ -171,7 +171,7 @@ export async function reviewQueue(em: EntityManager): Promise<QueueRun[]> {
 	const last = new Map<string, string>();
 	if (list.length) {
 		const rows = await em.execute<{ run_id: string; last: Date }[]>(
-			`select run_id, max(server_time) as last from ledger_record where run_id in (?) group by run_id`,
+			`select run_id, last_at as last from run_summary where run_id in (?)`,
 			[list.map((r) => r.id)]
 		);
 		for (const r of rows) last.set(r.run_id, new Date(r.last).toISOString());

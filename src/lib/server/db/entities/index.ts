@@ -18,6 +18,7 @@ import { ProcedureVersion } from './procedure-version.entity';
 import { Qualification } from './qualification.entity';
 import { RateLimit } from './rate-limit.entity';
 import { Run } from './run.entity';
+import { RunSignerDay, RunSummary } from './run-summary.entity';
 import { StoredImage } from './stored-image.entity';
 import { Tool } from './tool.entity';
 import { User } from './user.entity';
@@ -44,7 +45,8 @@ export type { ICalibration } from './calibration.entity';
 export type { IQualification } from './qualification.entity';
 export type { IPart } from './part.entity';
 export type { IPartLot } from './part-lot.entity';
-export { Run, LedgerRecord, PinLock };
+export { Run, LedgerRecord, PinLock, RunSummary, RunSignerDay };
+export type { IRunSummary, IRunSignerDay } from './run-summary.entity';
 export { RUN_STATES } from './run.entity';
 export type { IRun, RunState } from './run.entity';
 export type { ILedgerRecord } from './ledger-record.entity';
@@ -79,6 +81,8 @@ export const entities = [
 	Part,
 	PartLot,
 	Run,
+	RunSummary,
+	RunSignerDay,
 	LedgerRecord,
 	PinLock,
 	LedgerAnchor,

@@ -20,13 +20,8 @@ export const LedgerRecord = defineEntity({
 	],
 	// Audit search (issue 8): records by signer and time, and `body @> …` containment for lot trace and suspect tool.
 	indexes: [
-		// Index-only at scale (migration `…_audit_scale_indexes`): the runs a signer signed in a date range, a run's
-		// first/last time, its findings.
-		{
-			name: 'ledger_record_signer_time_run_index',
-			expression:
-				'create index "ledger_record_signer_time_run_index" on "ledger_record" ("signer_id", "server_time") include ("run_id")'
-		},
+		// Index-only at scale (migration `…_audit_scale_indexes`): the runs with a record in a date range, a run's
+		// first/last time, its findings. The runs a person signed on given days are in `run_signer_day`.
 		{
 			name: 'ledger_record_server_time_run_index',
 			expression:
