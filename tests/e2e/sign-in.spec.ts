@@ -28,6 +28,29 @@ test.describe('sign-in and roles', () => {
 		await expect(page.getByRole('heading', { name: 'My account' })).toBeVisible();
 	});
 
+	test('what is typed before the page has loaded its scripts is kept, and the sign-in goes through', async ({
+		page
+	}) => {
+		// On a slow shop network the form is on screen well before the app's scripts run: hold them back until the
+		// person has typed, then let the page hydrate.
+		let release = () => {};
+		const held = new Promise<void>((resolve) => (release = resolve));
+		await page.route('**/_app/immutable/**', async (route) => {
+			await held;
+			await route.continue();
+		});
+		await page.goto('/signin', { waitUntil: 'commit' });
+		await page.getByLabel('E-mail').fill(DEMO.quality.email);
+		await page.getByLabel('Password', { exact: true }).fill('bench-demo');
+		expect(await page.evaluate(() => history.scrollRestoration)).toBe('auto'); // not hydrated yet
+		release();
+		await page.waitForFunction(() => history.scrollRestoration === 'manual'); // SvelteKit's router has started
+		await expect(page.getByLabel('E-mail')).toHaveValue(DEMO.quality.email);
+		await expect(page.getByLabel('Password', { exact: true })).toHaveValue('bench-demo');
+		await page.getByRole('button', { name: 'Sign in' }).click();
+		await expect(page).toHaveURL(DEMO.quality.home);
+	});
+
 	test('a sign-in cannot be sent to another site', async ({ page }) => {
 		await signIn(page, DEMO.technician.email, 'bench-demo', '/signin?redirectTo=//elsewhere.example/x');
 		await expect(page).toHaveURL('/bench');

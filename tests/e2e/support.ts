@@ -33,9 +33,6 @@ export const DEMO = {
 
 export async function signIn(page: Page, email: string, password = DEMO_PASSWORD, from = '/signin') {
 	await page.goto(from);
-	// Typed before the page hydrated, the e-mail can be reset to the server's empty value (seen on a cold app server
-	// once the test stopped recording DOM snapshots, which had slowed every step). SvelteKit's router sets this last.
-	await page.waitForFunction(() => history.scrollRestoration === 'manual');
 	await page.getByLabel('E-mail').fill(email);
 	await page.getByLabel('Password', { exact: true }).fill(password);
 	await page.getByRole('button', { name: 'Sign in' }).click();
