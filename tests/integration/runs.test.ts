@@ -142,6 +142,10 @@ describe('runs and the submit route', () => {
 		const rows = await stored(runId);
 		expect(rows.map((r) => r.id)).toEqual(batch.map((r) => r.id));
 		expect(verifyChain(rows)).toMatchObject({ ok: true, count: 3 });
+		// Each acceptance carries the server's time as stored in the record (and hashed with it): what a tablet shows.
+		const entities = await ledger.listForRun(orm.em.fork(), runId);
+		expect(first.map((a) => a.serverTime)).toEqual(entities.map((e) => e.serverTime.toISOString()));
+		expect(first.map((a) => a.serverTime)).toEqual(rows.map((r) => (r.body as { serverTime: string }).serverTime));
 	});
 
 	it('refuses an id reused with different content', async () => {

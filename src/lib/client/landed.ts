@@ -27,10 +27,14 @@ export interface LandedRecord {
 	answer: RecordAnswer;
 }
 
-/** The view with the record laid in, or null when only the server's own view can tell the new state. */
-export function landedView(view: View, rec: LandedRecord, now: number): View | null {
+/**
+ * The view with the record laid in, or null when only the server's own view can tell the new state. Its hash and
+ * server time are the server's answer (never the tablet's clock); an answer without them takes the refresh.
+ */
+export function landedView(view: View, rec: LandedRecord): View | null {
 	const { answer } = rec;
 	if (answer.status !== 'accepted' || typeof answer.seq !== 'number' || answer.findings?.length) return null;
+	if (!answer.hash || !answer.serverTime) return null;
 	if (rec.kind !== 'signoff' && rec.kind !== 'attempt') return null;
 	if (view.run.state !== 'in_progress' || photoIdsOf(rec.body).length || 'tabletPhotos' in rec.body) return null;
 	const stepIndex = rec.body.stepIndex;
@@ -46,7 +50,6 @@ export function landedView(view: View, rec: LandedRecord, now: number): View | n
 	const entries = Array.isArray(rec.body.entries)
 		? (rec.body.entries as { checkpointId?: string; claimed?: string }[])
 		: [];
-	const at = new Date(now).toISOString();
 	const record: ViewRecord = {
 		id: rec.id,
 		seq: answer.seq,
@@ -58,12 +61,12 @@ export function landedView(view: View, rec: LandedRecord, now: number): View | n
 			evaluation: entries.map((e) => ({ checkpointId: e.checkpointId ?? '', status: e.claimed ?? 'pass' }))
 		} as ViewRecord['body'],
 		prevHash: view.run.headHash,
-		hash: '',
+		hash: answer.hash,
 		signerId: rec.signer.id,
 		signerRole: rec.signer.role,
 		deviceId: rec.deviceId,
 		deviceTime: new Date(rec.signedAt).toISOString(),
-		serverTime: at,
+		serverTime: answer.serverTime,
 		engineVersion: '',
 		signedOffline: false
 	};
@@ -72,17 +75,16 @@ export function landedView(view: View, rec: LandedRecord, now: number): View | n
 	const open = view.model.steps.filter((s) => !after.signoffOf.has(s.index) && !after.notApplicable.has(s.index));
 	// The run completes with its last step: the server moves it to awaiting review, which only its view tells.
 	if (open.length === 0) return null;
-	return { ...view, run: { ...view.run, records, recordCount: view.run.recordCount + 1 } };
+	return { ...view, run: { ...view.run, records, recordCount: view.run.recordCount + 1, headHash: answer.hash } };
 }
 
 /** Lays the record into the open run and the tablet's copy; null when the runner must refresh from the server. */
 export async function landLocally(
 	store: OfflineStore,
 	opened: OpenedRun,
-	rec: LandedRecord,
-	now = Date.now()
+	rec: LandedRecord
 ): Promise<OpenedRun | null> {
-	const view = landedView(opened.view, rec, now);
+	const view = landedView(opened.view, rec);
 	if (!view) return null;
 	const stored = { ...opened.stored, view };
 	await saveRun(store, stored);

@@ -6,6 +6,9 @@ export interface RecordAnswer {
 	status: 'accepted' | 'duplicate' | 'refused';
 	reason?: string;
 	seq?: number;
+	/** On an accepted record: its hash and the server's time in it. */
+	hash?: string;
+	serverTime?: string;
 	findings?: string[];
 	/** On an accepted record from an enrolled tablet: what lets this signer sign offline here for 12 h. */
 	offlineGrant?: { grant: string; issuedAt: number; epoch?: string };

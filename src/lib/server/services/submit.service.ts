@@ -66,6 +66,8 @@ export interface RecordAnswer {
 	reason?: string;
 	seq?: number;
 	hash?: string;
+	/** On an accepted record: the server's time written into it (ISO 8601), so a tablet never shows its own clock. */
+	serverTime?: string;
 	/** Ids of records the server appended because of this one (a finding when the tablet's verdict was wrong). */
 	findings?: string[];
 	/** For a PIN checked online on an enrolled tablet: the permit to check it there offline (12 h). */
@@ -634,7 +636,7 @@ async function appendFast(
 	}
 	seen.headHash = stored.hash;
 	seen.recordCount = stored.seq;
-	return { id: s.id, status: 'accepted', seq: stored.seq, hash: stored.hash };
+	return { id: s.id, status: 'accepted', seq: stored.seq, hash: stored.hash, serverTime: serverTime.toISOString() };
 }
 
 /**
@@ -753,7 +755,13 @@ async function append(
 			see();
 			if (findings.length > 0 || run.state !== stateBefore) await tx.flush();
 			else tx.clear();
-			const answer: RecordAnswer = { id: s.id, status: 'accepted', seq: stored.seq, hash: stored.hash };
+			const answer: RecordAnswer = {
+				id: s.id,
+				status: 'accepted',
+				seq: stored.seq,
+				hash: stored.hash,
+				serverTime: serverTime.toISOString()
+			};
 			return findings.length ? { ...answer, findings } : answer;
 		});
 		// mail the quality leads only once the transaction has committed; a failed send never fails the record.
