@@ -168,6 +168,22 @@ describe('audit search, lot trace and suspect tool (real PostgreSQL)', () => {
 		expect(p1.total).toBe(all.total);
 		expect(p2.total).toBe(all.total);
 		expect([...p1.runs, ...p2.runs].map((r) => r.id)).toEqual(all.runs.slice(0, 4).map((r) => r.id));
+		// Every sort joins what it names: the same runs, counted the same, in its order.
+		const ids = all.runs.map((r) => r.id).sort();
+		for (const sort of ['jobNumber', 'unitSerial', 'procedure', 'technician', 'records', 'findings', 'firstAt']) {
+			const got = await searchRuns(em, q({ procedure: f.procedureId, sort, dir: 'asc', limit: '100' }));
+			expect(got.total, sort).toBe(all.total);
+			expect(got.runs.map((r) => r.id).sort(), sort).toEqual(ids);
+		}
+		const byFindings = await searchRuns(
+			em,
+			q({ procedure: f.procedureId, sort: 'findings', dir: 'desc', limit: '100' })
+		);
+		const counts = byFindings.runs.map((r) => r.findings);
+		expect(counts).toEqual([...counts].sort((a, b) => b - a));
+		const byFirst = await searchRuns(em, q({ procedure: f.procedureId, sort: 'firstAt', dir: 'asc', limit: '100' }));
+		const firsts = byFirst.runs.map((r) => r.firstAt!);
+		expect(firsts).toEqual([...firsts].sort());
 		const past = await searchRuns(em, q({ procedure: f.procedureId, offset: '500' }));
 		expect(past.runs).toEqual([]);
 		expect(past.total).toBe(all.total);
