@@ -215,7 +215,8 @@ export async function searchRuns(em: EntityManager, f: RunFilter): Promise<{ row
 		join app_user u on u.id = r.assigned_to_id
 		left join run_summary s on s.run_id = r.id
 		order by page.pos`;
-	const raw = await boundRows<RawRunRow>(em, sql, [...params, f.limit, f.offset]);
+	// A named statement when the signer's runs are picked: the commonest question, and its plan is reused (bench).
+	const raw = await boundRows<RawRunRow>(em, sql, [...params, f.limit, f.offset], { prepared: picked !== '' });
 	// Past the last page there is no row to carry the count: ask for the first row only.
 	const total = raw.length
 		? Number(raw[0].total)
