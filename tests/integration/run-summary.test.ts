@@ -99,7 +99,7 @@ describe('run summary kept by the ledger trigger (real PostgreSQL)', () => {
 		expect((await search({ signer: f.lead.id, from: day(second) })).runs.map((r) => r.id)).toEqual([runId]);
 	});
 
-	it('lets the app role read the summary but never write it; the owner folds existing records in', async () => {
+	it('lets the app role read the summary but never write it; the trigger that keeps it is enabled', async () => {
 		const em = orm.em.fork();
 		await expect(em.execute(`update run_summary set finding_count = 0 where run_id = ?`, [runId])).rejects.toThrow(
 			/permission denied/
@@ -111,8 +111,8 @@ describe('run summary kept by the ledger trigger (real PostgreSQL)', () => {
 		try {
 			const [t] = await owner.em
 				.fork()
-				.execute<{ tgtype: number; tgenabled: string }[]>(
-					`select tgtype, tgenabled from pg_trigger where tgname = 'ledger_record_run_summary'`
+				.execute<{ tgenabled: string }[]>(
+					`select tgenabled from pg_trigger where tgname = 'ledger_record_run_summary'`
 				);
 			expect(t.tgenabled).toBe('O');
 		} finally {
