@@ -7,13 +7,14 @@
  * `npm test -- --skip-static` or `--only=unit|integration|e2e` narrow it while working; `--reuse-build` skips the
  * vite build and runs Playwright on the one already in BENCHSTAMP_BUILD_DIR (when only tests changed).
  */
-import { spawn } from 'node:child_process';
+import { spawn, type ChildProcess } from 'node:child_process';
 import { chmod, mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { migrate } from './lib/migrate';
 import { runDemoSeed } from './lib/demo-seed';
+import { onInterrupt, signalExitCode, type EndingSignal } from './lib/interrupt';
 import { freePort, startCluster, stopCluster } from './lib/postgres';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..');
@@ -30,17 +31,29 @@ const wants = (layer: string) => !only || only.split(',').includes(layer);
 const integrationArgs = only === 'integration' ? passArgs : [];
 const playwrightArgs = only === 'integration' ? [] : passArgs;
 
+// On Ctrl-C or `kill`: end the gate that is running and start no other, so `main`'s finally stops the cluster.
+let interrupted: EndingSignal | null = null;
+let running: ChildProcess | null = null;
+onInterrupt((signal) => {
+	interrupted = signal;
+	console.error(`\n${signal}: stopping the running gate and the test cluster…`);
+	running?.kill(signal);
+});
+
 function run(label: string, cmd: string, cmdArgs: string[], env: NodeJS.ProcessEnv = {}): Promise<void> {
+	if (interrupted) return Promise.reject(new Error(`${label} not started (${interrupted})`));
 	const started = Date.now();
 	console.log(`\n▶ ${label}`);
 	return new Promise((ok, fail) => {
 		const child = spawn(cmd, cmdArgs, { cwd: root, stdio: 'inherit', env: { ...process.env, ...env } });
-		child.on('exit', (code) => {
+		running = child;
+		child.on('exit', (code, signal) => {
+			running = null;
 			const secs = ((Date.now() - started) / 1000).toFixed(1);
 			if (code === 0) {
 				console.log(`✔ ${label} (${secs} s)`);
 				ok();
-			} else fail(new Error(`${label} failed (exit ${code}) after ${secs} s`));
+			} else fail(new Error(`${label} failed (exit ${code ?? signal}) after ${secs} s`));
 		});
 	});
 }
@@ -105,9 +118,12 @@ async function main() {
 }
 
 main().then(
-	() => console.log('\nAll gates passed.'),
+	() => {
+		if (interrupted) process.exit(signalExitCode(interrupted));
+		console.log('\nAll gates passed.');
+	},
 	(e: unknown) => {
 		console.error(`\n✘ ${e instanceof Error ? e.message : String(e)}`);
-		process.exit(1);
+		process.exit(interrupted ? signalExitCode(interrupted) : 1);
 	}
 );

@@ -42,8 +42,18 @@ export async function benchDb(): Promise<BenchDb> {
 	return started.db;
 }
 
-/** Closes the ORM, stops the cluster and deletes its directory (nothing when no bench started it). */
-export async function closeBenchDb(): Promise<void> {
+let closing: Promise<void> | undefined;
+
+/**
+ * Closes the ORM, stops the cluster and deletes its directory (nothing when no bench started it). Every call waits
+ * for the same close: a signal's cleanup and the runner's `finally` may both ask.
+ */
+export function closeBenchDb(): Promise<void> {
+	closing ??= close();
+	return closing;
+}
+
+async function close(): Promise<void> {
 	if (!started) return;
 	const { baseDir, db } = started;
 	started = undefined;

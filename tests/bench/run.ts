@@ -4,6 +4,7 @@
  * To add a bench, write `tests/bench/<name>.bench.ts` exporting `title` and `main(medianMs)`,
  * and list it in `modules` below. Benches that need PostgreSQL share one cluster (`bench-db.ts`).
  */
+import { onInterrupt, signalExitCode } from '../../scripts/lib/interrupt';
 import * as audit from './audit.bench';
 import { closeBenchDb } from './bench-db';
 import * as offline from './offline.bench';
@@ -31,6 +32,12 @@ export async function medianMs(fn: () => unknown, runs = 7, warmup = 2): Promise
 const modules: BenchModule[] = [procedure, runner, offline, audit];
 /** `BENCH_ONLY=runner` (comma-separated words) runs only the modules whose title has one of them (iterating). */
 const only = process.env.BENCH_ONLY?.split(',').map((w) => w.trim().toLowerCase());
+
+// Ctrl-C or `kill` in the middle of a bench (a 1M-record load takes minutes): stop the shared cluster, then exit.
+onInterrupt((signal) => {
+	console.error(`\n${signal}: stopping the bench cluster…`);
+	void closeBenchDb().finally(() => process.exit(signalExitCode(signal)));
+});
 
 try {
 	for (const m of modules.filter((x) => !only || only.some((w) => x.title.toLowerCase().includes(w)))) {
