@@ -36,6 +36,8 @@ const only = process.env.BENCH_ONLY?.split(',').map((w) => w.trim().toLowerCase(
 // Ctrl-C or `kill` in the middle of a bench (a 1M-record load takes minutes): stop the shared cluster, then exit.
 onInterrupt((signal) => {
 	console.error(`\n${signal}: stopping the bench cluster…`);
+	// Stopping the cluster fails the queries in flight; their errors must not end the process before it is deleted.
+	process.on('uncaughtException', () => undefined).on('unhandledRejection', () => undefined);
 	void closeBenchDb().finally(() => process.exit(signalExitCode(signal)));
 });
 

@@ -1,9 +1,10 @@
 import { spawn } from 'node:child_process';
-import { chmod, mkdtemp, readdir, readFile, rm } from 'node:fs/promises';
+import { chmod, mkdtemp, readdir, rm } from 'node:fs/promises';
 import { connect } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { clusterStatus } from '../../scripts/lib/postgres';
 
 const root = join(import.meta.dirname, '..', '..');
 
@@ -40,14 +41,15 @@ describe('npm test interrupted', () => {
 		});
 		const [base] = (await readdir(tmp)).filter((name) => name.startsWith('benchstamp-npm-test-'));
 		expect(base).toBeDefined();
-		// postmaster.pid: pid, data directory, start time, port, …
-		const port = Number((await readFile(join(tmp, base, 'postgres', 'postmaster.pid'), 'utf8')).split('\n')[3]);
-		expect(await listening(port)).toBe(true);
+		const { running, port } = await clusterStatus(join(tmp, base));
+		expect(running).toBe(true);
+		// Once its directory is deleted only the port can tell whether a postmaster was left behind.
+		expect(await listening(port!)).toBe(true);
 
 		child.kill('SIGTERM');
 		expect(await exited).toBe(143);
 		expect(output).toContain('SIGTERM: stopping the running gate and the test cluster');
-		expect(await listening(port)).toBe(false);
+		expect(await listening(port!)).toBe(false);
 		expect((await readdir(tmp)).filter((name) => name.startsWith('benchstamp-npm-test-'))).toEqual([]);
 	}, 120_000);
 });
