@@ -8,14 +8,32 @@ import { ormOptions } from '../../mikro-orm.config';
 export async function migrate(
 	ownerUrl: string,
 	appUrl: string,
-	log: (m: string) => void = () => {}
+	log: (m: string) => void = () => {},
+	opts: { to?: string } = {}
 ): Promise<string[]> {
 	process.env.BENCHSTAMP_APP_ROLE = decodeURIComponent(new URL(appUrl).username);
 	const orm = await MikroORM.init(ormOptions(ownerUrl));
 	try {
-		const applied = await orm.getMigrator().up();
+		const applied = await orm.getMigrator().up(opts.to ? { to: opts.to } : undefined);
 		for (const m of applied) log(`migrated ${m.name}`);
 		return applied.map((m) => m.name);
+	} finally {
+		await orm.close(true);
+	}
+}
+
+/** Reverts the last applied migration (its `down`), as the owner role; the name reverted, or null when none is. */
+export async function migrateDown(
+	ownerUrl: string,
+	appUrl: string,
+	log: (m: string) => void = () => {}
+): Promise<string | null> {
+	process.env.BENCHSTAMP_APP_ROLE = decodeURIComponent(new URL(appUrl).username);
+	const orm = await MikroORM.init(ormOptions(ownerUrl));
+	try {
+		const [reverted] = await orm.getMigrator().down();
+		if (reverted) log(`reverted ${reverted.name}`);
+		return reverted?.name ?? null;
 	} finally {
 		await orm.close(true);
 	}

@@ -138,14 +138,14 @@ class Batch {
 	get size() {
 		return this.cols[0].length;
 	}
-	add(r: Omit<StoredRecord, 'body'>, bodyText: string, signer: Signer, at: number) {
+	add(r: Omit<StoredRecord, 'body'>, canonical: string, signer: Signer, at: number) {
 		const time = new Date(at).toISOString();
 		const values = [
 			r.id,
 			r.runId,
 			r.seq,
 			r.kind,
-			bodyText,
+			canonical,
 			r.prevHash,
 			r.hash,
 			sha256Hex(r.hash),
@@ -160,9 +160,9 @@ class Batch {
 		for (let i = 0; i < values.length; i++) this.cols[i].push(values[i]);
 	}
 }
-const LEDGER_INSERT = `insert into ledger_record (id, run_id, seq, kind, body, prev_hash, hash, submission_hash, signer_id,
+const LEDGER_INSERT = `insert into ledger_record (id, run_id, seq, kind, canonical, prev_hash, hash, submission_hash, signer_id,
 	signer_role, device_id, device_time, server_time, engine_version, signed_offline)
-	select * from unnest($1::uuid[], $2::uuid[], $3::int[], $4::text[], $5::jsonb[], $6::text[], $7::text[], $8::text[],
+	select * from unnest($1::uuid[], $2::uuid[], $3::int[], $4::text[], $5::text[], $6::text[], $7::text[], $8::text[],
 	$9::uuid[], $10::text[], $11::text[], $12::timestamptz[], $13::timestamptz[], $14::text[], $15::boolean[])`;
 
 /** Generates and loads `total` records (see the module comment); the ids a bench samples from. */
@@ -218,7 +218,7 @@ export async function loadLedger(orm: MikroORM, ownerUrl: string, total: number)
 					if (again.hash !== hash) throw new Error(`generated record ${id} is not canonical: ${envelope}`);
 				}
 				head = { runId, seq, hash };
-				batch.add({ id, runId, seq, kind: p.kind, prevHash, hash }, text, p.signer, p.at);
+				batch.add({ id, runId, seq, kind: p.kind, prevHash, hash }, envelope, p.signer, p.at);
 				if (rnd() < 0.002) recordIds.push(id);
 			}
 			stored += records.length;

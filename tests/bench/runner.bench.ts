@@ -156,14 +156,24 @@ export async function submitThroughput(
 
 	// The same rows, one INSERT each (autocommit: its own transaction), into a copy of the table.
 	const owner = await connectClient(ownerUrl);
-	await owner.query(`create table bench_ledger (like ledger_record including defaults including indexes)`);
+	// The same shape as ledger_record, its generated body included (PostgreSQL parses each stored text on both sides).
+	await owner.query(
+		`create table bench_ledger (like ledger_record including defaults including indexes including generated)`
+	);
 	await owner.query(`grant insert, select on bench_ledger to benchstamp_app`);
+	const generated = new Set(
+		(
+			await owner.query(
+				`select attname from pg_attribute where attrelid = 'ledger_record'::regclass and attgenerated <> ''`
+			)
+		).rows.map((r) => (r as { attname: string }).attname)
+	);
 	const rows = (await owner.query(`select * from ledger_record order by run_id, seq`)).rows as Record<
 		string,
 		unknown
 	>[];
 	await owner.end();
-	const cols = Object.keys(rows[0]);
+	const cols = Object.keys(rows[0]).filter((c) => !generated.has(c));
 	const sql = `insert into bench_ledger (${cols.map((c) => `"${c}"`).join(', ')}) values (${cols.map((_, i) => `$${i + 1}`).join(', ')})`;
 	const pool = new Pool({ connectionString: appUrl, max: POOL });
 	const queues = Array.from({ length: POOL }, (_, i) => rows.filter((_, j) => j % POOL === i));

@@ -2,7 +2,7 @@ import type { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { withClient } from '../../scripts/lib/postgres';
 import { verifyChain } from '../../src/lib/ledger/chain';
-import { recordHash, type StoredRecord } from '../../src/lib/ledger/record';
+import { canonicalRecord, recordHash, type StoredRecord } from '../../src/lib/ledger/record';
 import type { IUser } from '../../src/lib/server/db/entities';
 import * as ledger from '../../src/lib/server/repositories/ledger';
 import {
@@ -78,11 +78,12 @@ describe('verify: proof that a run’s ledger is unaltered', () => {
 		});
 	});
 
-	it('a reading changed in the stored body by a superuser → hash_mismatch at exactly that record', async () => {
+	it('a reading changed in the stored text by a superuser → hash_mismatch at exactly that record', async () => {
 		const { runId } = await runWithRecords();
 		const before = await stored(runId);
+		// The body column is generated from the canonical text, so the change shows in both.
 		await asSuperuser(
-			`update ledger_record set body = jsonb_set(body, '{entries,0,entry,readings,0}', '"22.019"') where id = $1`,
+			`update ledger_record set canonical = replace(canonical, '"readings":["22.012"]', '"readings":["22.019"]') where id = $1`,
 			[before[1].id]
 		);
 		const after = await stored(runId);
@@ -116,9 +117,9 @@ describe('verify: proof that a run’s ledger is unaltered', () => {
 			// Later rows first would collide on the unique (run, prev_hash); a deferred swap is not needed when the
 			// new hashes are all new values, so update in chain order.
 			for (const r of forged.slice(1))
-				await c.query('update ledger_record set body = $2, prev_hash = $3, hash = $4 where id = $1', [
+				await c.query('update ledger_record set canonical = $2, prev_hash = $3, hash = $4 where id = $1', [
 					r.id,
-					JSON.stringify(r.body),
+					canonicalRecord(r),
 					r.prevHash,
 					r.hash
 				]);

@@ -94,8 +94,8 @@ describe('runs and the submit route', () => {
 			[tech.id]: PIN
 		});
 		await withClient(testDbUrls().appUrl, async (c) => {
-			const insert = `insert into ledger_record (id, run_id, seq, kind, body, prev_hash, hash, submission_hash, signer_role, server_time, engine_version)
-				values ($1, $2, $3, 'attempt', '{}', $4, $5, $5, 'technician', now(), 'x')`;
+			const insert = `insert into ledger_record (id, run_id, seq, kind, canonical, prev_hash, hash, submission_hash, signer_role, server_time, engine_version)
+				values ($1, $2, $3, 'attempt', '{"body":{}}', $4, $5, $5, 'technician', now(), 'x')`;
 			const h = (ch: string) => ch.repeat(64);
 			// Written straight to the table (as a bug that skipped the run lock would): a second follower of record 1
 			// is refused however it is numbered, and so is a second record 1.

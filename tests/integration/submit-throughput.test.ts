@@ -7,6 +7,7 @@ import type { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { verifyChain } from '../../src/lib/ledger/chain';
 import { uuidv7 } from '../../src/lib/ledger/uuid-v7';
+import { sealNext } from '../../src/lib/server/ledger-hash';
 import { Run, type IUser } from '../../src/lib/server/db/entities';
 import * as adminLog from '../../src/lib/server/repositories/admin-log';
 import * as ledger from '../../src/lib/server/repositories/ledger';
@@ -136,15 +137,8 @@ describe('submit route fast path', () => {
 			subjectId: runId,
 			detail: { decision: 'move' }
 		};
-		const next = (id: string) => ({
-			id,
-			runId,
-			seq: run.recordCount + 1,
-			kind: 'attempt' as const,
-			body: boreAttempt('22.010'),
-			prevHash: run.headHash ?? null,
-			hash: 'f'.repeat(64)
-		});
+		const head0 = run.headHash ? { runId, seq: run.recordCount, hash: run.headHash } : null;
+		const next = (id: string) => sealNext(head0, { id, runId, kind: 'attempt', body: boreAttempt('22.010') });
 		const columns = {
 			submissionHash: 'e'.repeat(64),
 			signerId: tech.id,

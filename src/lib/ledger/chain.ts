@@ -6,7 +6,7 @@
  * record and recompute every later hash. {@link verifyAgainstAnchor} closes that gap with a head kept outside the
  * database (printed on a release PDF, sent in the daily digest).
  */
-import { type LedgerRecord, type RecordDraft, recordHash, type StoredRecord } from './record';
+import { type ChainLink, type LedgerRecord, type RecordDraft, recordHash, type StoredRecord } from './record';
 
 /** The last record of a run's chain, which is all an append needs. */
 export interface ChainHead {
@@ -21,12 +21,30 @@ export function headOf(r: StoredRecord): ChainHead {
 }
 
 /**
- * The stored form of `draft` appended after `head` (null: the run has no records yet, so this is the first, with
- * seq 1 and prevHash null). Pure: the caller reads the head and inserts the result inside one transaction that holds
- * the run's row lock, so two submissions can never both follow the same head.
+ * The envelope of `draft` appended after `head` (null: the run has no records yet, so this is the first, with seq 1
+ * and prevHash null), not yet hashed. Pure: the caller reads the head and inserts the result inside one transaction
+ * that holds the run's row lock, so two submissions can never both follow the same head.
  *
- * `hash` is {@link recordHash} unless the caller passes an equal one (the server passes node:crypto's sha256 over
- * the same preimage, `$lib/server/ledger-hash`; a unit test holds them equal).
+ * @throws {Error} when `head` belongs to another run.
+ */
+export function nextRecord(head: ChainHead | null, draft: RecordDraft): LedgerRecord {
+	if (head && head.runId !== draft.runId) {
+		throw new Error(`Record ${draft.id} is for run ${draft.runId} but the chain head is of run ${head.runId}.`);
+	}
+	return {
+		id: draft.id,
+		runId: draft.runId,
+		seq: head ? head.seq + 1 : 1,
+		kind: draft.kind,
+		body: draft.body,
+		prevHash: head ? head.hash : null
+	};
+}
+
+/**
+ * The stored form of `draft` appended after `head`: {@link nextRecord} with its hash. `hash` is {@link recordHash}
+ * unless the caller passes an equal one (the server seals records with node:crypto's sha256 over the same preimage,
+ * `$lib/server/ledger-hash`; a unit test holds them equal).
  *
  * @throws {Error} when `head` belongs to another run; {@link JcsError} when the body is not plain JSON.
  */
@@ -35,17 +53,7 @@ export function appendTo(
 	draft: RecordDraft,
 	hash: (r: LedgerRecord) => string = recordHash
 ): StoredRecord {
-	if (head && head.runId !== draft.runId) {
-		throw new Error(`Record ${draft.id} is for run ${draft.runId} but the chain head is of run ${head.runId}.`);
-	}
-	const record = {
-		id: draft.id,
-		runId: draft.runId,
-		seq: head ? head.seq + 1 : 1,
-		kind: draft.kind,
-		body: draft.body,
-		prevHash: head ? head.hash : null
-	};
+	const record = nextRecord(head, draft);
 	return { ...record, hash: hash(record) };
 }
 
@@ -112,13 +120,16 @@ function fail(
 	return { ok: false, index, recordId, reason, expected, found, message };
 }
 
-function safeHash(r: StoredRecord, hash: (r: LedgerRecord) => string): string | null {
+function safeHash<T>(r: T, hash: (r: T) => string): string | null {
 	try {
 		return hash(r);
 	} catch {
 		return null; // a body that can no longer be encoded cannot be the one that was signed
 	}
 }
+
+/** How a failure names a record; built only for a failure (verify runs the loop a million times). */
+const named = (r: ChainLink) => `Record ${r.seq} (${r.kind}, id ${r.id})`;
 
 const short = (hash: string | null) => (hash === null ? 'none' : hash.slice(0, 12) + '…');
 
@@ -132,15 +143,16 @@ const short = (hash: string | null) => (hash === null ? 'none' : hash.slice(0, 1
  * `hash` is {@link recordHash} unless the caller passes an equal one (the server passes node:crypto's, as to
  * {@link appendTo}).
  */
+export function verifyChain(records: readonly StoredRecord[]): ChainVerification;
+export function verifyChain<T extends ChainLink>(records: readonly T[], hash: (r: T) => string): ChainVerification;
 export function verifyChain(
-	records: readonly StoredRecord[],
-	hash: (r: LedgerRecord) => string = recordHash
+	records: readonly ChainLink[],
+	hash: (r: ChainLink) => string = recordHash as unknown as (r: ChainLink) => string
 ): ChainVerification {
 	const ids = new Map<string, number>();
 	const followers = new Map<string | null, number>();
 	for (let i = 0; i < records.length; i++) {
 		const r = records[i];
-		const n = `Record ${r.seq} (${r.kind}, id ${r.id})`;
 
 		const twin = ids.get(r.id);
 		if (twin !== undefined) {
@@ -150,7 +162,7 @@ export function verifyChain(
 				'duplicate_id',
 				'a new id',
 				r.id,
-				`${n} has the same id as the record at position ${twin + 1}: one submission was stored twice.`
+				`${named(r)} has the same id as the record at position ${twin + 1}: one submission was stored twice.`
 			);
 		}
 		ids.set(r.id, i);
@@ -162,7 +174,7 @@ export function verifyChain(
 				'wrong_run',
 				records[0].runId,
 				r.runId,
-				`${n} belongs to run ${r.runId}, not to run ${records[0].runId}: it does not belong in this chain.`
+				`${named(r)} belongs to run ${r.runId}, not to run ${records[0].runId}: it does not belong in this chain.`
 			);
 		}
 
@@ -174,7 +186,7 @@ export function verifyChain(
 				'hash_mismatch',
 				r.hash,
 				computed ?? 'unencodable contents',
-				`${n} was changed after it was stored: its contents no longer give the hash recorded with it.`
+				`${named(r)} was changed after it was stored: its contents no longer give the hash recorded with it.`
 			);
 		}
 
@@ -186,7 +198,7 @@ export function verifyChain(
 				'fork',
 				'one record after each record',
 				`records ${records[sibling].seq} and ${r.seq} follow the same record`,
-				`${n} and record ${records[sibling].seq} (id ${records[sibling].id}) both follow the same earlier record: the chain splits in two here, as when two submissions are appended at once without the run's lock.`
+				`${named(r)} and record ${records[sibling].seq} (id ${records[sibling].id}) both follow the same earlier record: the chain splits in two here, as when two submissions are appended at once without the run's lock.`
 			);
 		}
 		followers.set(r.prevHash, i);
@@ -202,7 +214,7 @@ export function verifyChain(
 					'out_of_order',
 					String(expectedSeq),
 					String(r.seq),
-					`${n} is stored where record ${expectedSeq} belongs; record ${expectedSeq} comes later in the list. The records are out of order.`
+					`${named(r)} is stored where record ${expectedSeq} belongs; record ${expectedSeq} comes later in the list. The records are out of order.`
 				);
 			}
 			const gap =
@@ -216,8 +228,8 @@ export function verifyChain(
 		const expectedPrev = prev ? prev.hash : null;
 		if (r.prevHash !== expectedPrev) {
 			const message = prev
-				? `${n} does not follow record ${prev.seq}: it names ${short(r.prevHash)} as the record before it, but record ${prev.seq}'s hash is ${short(prev.hash)}. A record between them was removed or replaced.`
-				: `${n} is the first record but points to an earlier one that is not there: the start of the chain is missing.`;
+				? `${named(r)} does not follow record ${prev.seq}: it names ${short(r.prevHash)} as the record before it, but record ${prev.seq}'s hash is ${short(prev.hash)}. A record between them was removed or replaced.`
+				: `${named(r)} is the first record but points to an earlier one that is not there: the start of the chain is missing.`;
 			return fail(i, r.id, 'broken_link', expectedPrev ?? 'none', r.prevHash ?? 'none', message);
 		}
 	}
@@ -240,8 +252,17 @@ export function verifyAgainstAnchor(records: readonly StoredRecord[], anchor: Ch
  */
 export function verifyAgainstAnchors(
 	records: readonly StoredRecord[],
+	anchors: readonly ChainAnchor[]
+): ChainVerification;
+export function verifyAgainstAnchors<T extends ChainLink>(
+	records: readonly T[],
 	anchors: readonly ChainAnchor[],
-	hash: (r: LedgerRecord) => string = recordHash
+	hash: (r: T) => string
+): ChainVerification;
+export function verifyAgainstAnchors(
+	records: readonly ChainLink[],
+	anchors: readonly ChainAnchor[],
+	hash: (r: ChainLink) => string = recordHash as unknown as (r: ChainLink) => string
 ): ChainVerification {
 	const chain = verifyChain(records, hash);
 	if (!chain.ok) return chain;

@@ -1,7 +1,14 @@
 import { sha256 } from '@noble/hashes/sha2.js';
 import { bytesToHex, utf8ToBytes } from '@noble/hashes/utils.js';
 import { describe, expect, it } from 'vitest';
-import { canonicalRecord, LEDGER_HASH_DOMAIN, type LedgerRecord, recordHash } from './record';
+import {
+	CANONICAL_HEAD,
+	canonicalRecord,
+	canonicalTail,
+	LEDGER_HASH_DOMAIN,
+	type LedgerRecord,
+	recordHash
+} from './record';
 import { ledgerRecordSchema, recordDraftSchema, storedRecordSchema } from './schema';
 
 /** A sign-off in the invented demo scenario (Kestrel Lane Transmission Works, KTX-7); readings as decimal strings. */
@@ -124,5 +131,19 @@ describe('zod schemas', () => {
 		const r = ledgerRecordSchema.safeParse({ ...signoff, ...change });
 		expect(r.success).toBe(false);
 		expect(r.error?.issues.map((i) => i.message).join(' ')).toMatch(message);
+	});
+});
+
+describe('CANONICAL_HEAD and canonicalTail', () => {
+	// What verify checks a stored text against: the text is head + JCS(body) + tail, nothing else.
+	it.each([
+		['the first record (no previous hash)', signoff],
+		['a later record', { ...signoff, seq: 12, kind: 'finding' as const, prevHash: 'f'.repeat(64) }]
+	])('frame the canonical text of %s around its body', (_, r) => {
+		const text = canonicalRecord(r);
+		const body = JSON.stringify(JSON.parse(text).body);
+		expect(text.startsWith(CANONICAL_HEAD)).toBe(true);
+		expect(text.endsWith(canonicalTail(r))).toBe(true);
+		expect(JSON.parse(CANONICAL_HEAD + body + canonicalTail(r))).toEqual(JSON.parse(text));
 	});
 });

@@ -49,6 +49,17 @@ export interface StoredRecord extends LedgerRecord {
 	hash: string;
 }
 
+/** What chain verification looks at besides the hash it recomputes: a stored record without its body. */
+export type ChainLink = Omit<StoredRecord, 'body'>;
+
+/**
+ * A stored record with {@link canonicalRecord} of it, the exact text its hash is over (after the domain prefix). The
+ * server stores this text and derives the `body` column from it, so what is shown and what is hashed are one.
+ */
+export interface SealedRecord extends StoredRecord {
+	canonical: string;
+}
+
 /** What a client submits: the chain position (`seq`, `prevHash`) is assigned by the server under the run's lock. */
 export type RecordDraft = Pick<LedgerRecord, 'id' | 'runId' | 'kind' | 'body'>;
 
@@ -73,6 +84,20 @@ export function canonicalRecord(r: LedgerRecord): string {
 		prevHash: r.prevHash
 	};
 	return canonicalize(envelope);
+}
+
+/** How every {@link canonicalRecord} begins: "body" is the first key in UTF-16 order. */
+export const CANONICAL_HEAD = '{"body":';
+
+/**
+ * How {@link canonicalRecord} of a record with these envelope fields ends: the five keys after "body", in RFC 8785
+ * order (id, kind, prevHash, runId, seq). ASCII only (uuids, a kind name, hex, digits), so its length in characters
+ * is its length in UTF-8 bytes. A stored canonical text that begins with {@link CANONICAL_HEAD} and ends with this
+ * is the envelope of exactly these fields around some body.
+ */
+export function canonicalTail(r: Omit<LedgerRecord, 'body'>): string {
+	const prev = r.prevHash === null ? 'null' : JSON.stringify(r.prevHash);
+	return `,"id":${JSON.stringify(r.id)},"kind":${JSON.stringify(r.kind)},"prevHash":${prev},"runId":${JSON.stringify(r.runId)},"seq":${r.seq}}`;
 }
 
 /** The exact bytes that are hashed: UTF-8 of {@link LEDGER_HASH_DOMAIN} followed by {@link canonicalRecord}. */

@@ -1,7 +1,7 @@
 // Run by scripts (outside Vite): relative imports only.
 /**
  * The demo shop's history (demo mode only), so search, lot trace, suspect tool and trends have answers: eight weeks
- * of released runs of the three demo procedures, every record a real chained ledger record (`appendTo` + the
+ * of released runs of the three demo procedures, every record a real chained ledger record (`sealNext` + the
  * repository insert submit.service uses) carrying the server's own `evaluate()` of its entries and the tools' status
  * on the day it was signed — so `verifyAll` finds every chain intact. Every value is invented, not service data:
  *
@@ -21,7 +21,6 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { evaluate, type TorqueToolContext } from '../checks/evaluate';
 import { findUnit } from '../checks/units';
 import { canonicalize, type JsonValue } from '../ledger/jcs';
-import { appendTo } from '../ledger/chain';
 import type { RecordKind, StoredRecord } from '../ledger/record';
 import { uuidv7 } from '../ledger/uuid-v7';
 import type { Checkpoint, Procedure, Step } from '../procedure/model';
@@ -38,6 +37,7 @@ import {
 	type IRun,
 	type IUser
 } from './db/entities';
+import { sealNext } from './ledger-hash';
 import * as jobs from './repositories/jobs';
 import * as ledger from './repositories/ledger';
 import * as runs from './repositories/runs';
@@ -146,7 +146,7 @@ function append(
 		serverTime: at.toISOString(),
 		engine: ENGINE_VERSION
 	});
-	const stored = appendTo(head ? { runId: run.id, seq: head.seq, hash: head.hash } : null, {
+	const stored = sealNext(head ? { runId: run.id, seq: head.seq, hash: head.hash } : null, {
 		id: uuidv7(),
 		runId: run.id,
 		kind,

@@ -4,11 +4,14 @@ import { promisify } from 'node:util';
 
 const root = join(import.meta.dirname, '..', '..', '..');
 
-/** Runs `scripts/migrate.ts` under tsx and returns the names it applied. */
-export async function migrateDb(ownerUrl: string, appUrl: string): Promise<string[]> {
+/**
+ * Runs `scripts/migrate.ts` under tsx (with `args`, e.g. `--to=NAME` or `--down`) and returns the names it applied
+ * or reverted.
+ */
+export async function migrateDb(ownerUrl: string, appUrl: string, args: string[] = []): Promise<string[]> {
 	const { stdout } = await promisify(execFile)(
 		process.execPath,
-		[join(root, 'node_modules', 'tsx', 'dist', 'cli.mjs'), join(root, 'scripts', 'migrate.ts')],
+		[join(root, 'node_modules', 'tsx', 'dist', 'cli.mjs'), join(root, 'scripts', 'migrate.ts'), ...args],
 		{
 			cwd: root,
 			env: { ...process.env, DATABASE_URL: appUrl, OWNER_DATABASE_URL: ownerUrl }
@@ -16,6 +19,6 @@ export async function migrateDb(ownerUrl: string, appUrl: string): Promise<strin
 	);
 	return stdout
 		.split('\n')
-		.filter((l) => l.startsWith('migrated '))
-		.map((l) => l.slice('migrated '.length));
+		.filter((l) => /^(migrated|reverted) /.test(l))
+		.map((l) => l.slice(l.indexOf(' ') + 1));
 }

@@ -1,14 +1,6 @@
 import { createHash } from 'node:crypto';
 import type { EntityManager, Knex } from '@mikro-orm/postgresql';
-
-/** The pg client of the ORM's pool, typed as little as a named statement needs. */
-interface PooledClient {
-	query(q: { name: string; text: string; values: unknown[] }): Promise<{ rows: unknown[] }>;
-}
-interface ConnectionPool {
-	acquireConnection(): Promise<PooledClient>;
-	releaseConnection(c: PooledClient): Promise<unknown>;
-}
+import { withPooledClient } from './pooled-client';
 
 /** `?` placeholders as PostgreSQL's `$1, $2, …` (the texts given here hold no `?` inside a literal). */
 const numbered = (sql: string) => {
@@ -36,13 +28,10 @@ export async function boundRows<T>(
 	if (opts.prepared && !tx) {
 		const text = numbered(sql);
 		const name = `bs_${createHash('sha256').update(text).digest('hex').slice(0, 24)}`;
-		const pool = em.getConnection().getKnex().client as ConnectionPool;
-		const client = await pool.acquireConnection();
-		try {
-			return (await client.query({ name, text, values: [...params] })).rows as T[];
-		} finally {
-			await pool.releaseConnection(client);
-		}
+		return withPooledClient(
+			em,
+			async (client) => (await client.query({ name, text, values: [...params] })).rows as T[]
+		);
 	}
 	const query = em
 		.getConnection()

@@ -1,13 +1,33 @@
 /**
- * Reads of the ledger for verification, as plain rows (no entity hydrated): one run's chain, or every chain in
- * `(run_id, seq)` order, in pages walked by keyset on the `(run_id, seq)` unique index so memory stays bounded by
- * one page and the largest run. Through `em.execute`: inside the caller's transaction when there is one.
+ * Reads of the ledger for verification, as plain rows (no entity hydrated).
+ *
+ * Normally verify hashes each record's stored canonical text (`canonical`, from which PostgreSQL generates `body`):
+ * one run's chain through `em.execute` (inside the caller's transaction when there is one), or every chain in
+ * `(run_id, seq)` order through one binary `COPY` — one statement, so one snapshot, and no per-field decoding.
+ * Should the `body` column ever stop being generated from that text (someone with direct access to the database
+ * dropping the expression), the text no longer proves what is shown, and verify reads and re-encodes the bodies
+ * instead: {@link hashSource} says which.
  */
 import type { EntityManager } from '@mikro-orm/postgresql';
+import { to as copyTo } from 'pg-copy-streams';
 import type { JsonValue } from '../../ledger/jcs';
 import type { StoredRecord } from '../../ledger/record';
+import { CopyBinaryReader } from '../db/copy-binary';
+import { withPooledClient } from '../db/pooled-client';
+import type { StoredText } from '../ledger-hash';
 
-interface Row {
+/**
+ * 'text' while `ledger_record.body` is still generated from `canonical` (as the migration made it), else 'body'. Read
+ * from PostgreSQL's catalogue at each verify: a column changed by hand is found on the next check.
+ */
+export async function hashSource(em: EntityManager): Promise<'text' | 'body'> {
+	const rows = await em.execute<{ generated: string }[]>(
+		`select "attgenerated" as "generated" from "pg_attribute" where "attrelid" = '"ledger_record"'::regclass and "attname" = 'body' and not "attisdropped"`
+	);
+	return rows[0]?.generated === 's' ? 'text' : 'body';
+}
+
+interface BodyRow {
 	id: string;
 	run_id: string;
 	seq: number;
@@ -17,59 +37,156 @@ interface Row {
 	hash: string;
 }
 
-const COLUMNS = `"id", "run_id", "seq", "kind", "body", "prev_hash", "hash"`;
-
-const toStored = (r: Row): StoredRecord => ({
-	id: r.id,
-	runId: r.run_id,
-	seq: r.seq,
-	kind: r.kind as StoredRecord['kind'],
-	body: r.body,
-	prevHash: r.prev_hash,
-	hash: r.hash
-});
-
-/** A run's records in chain order (`ORDER BY seq`), as `verifyChain` takes them. */
+/** A run's records in chain order with their bodies, as `verifyChain` takes them with `serverRecordHash`. */
 export async function chainOf(em: EntityManager, runId: string): Promise<StoredRecord[]> {
-	const rows = await em.execute<Row[]>(`select ${COLUMNS} from "ledger_record" where "run_id" = ? order by "seq"`, [
-		runId
-	]);
-	return rows.map(toStored);
+	const rows = await em.execute<BodyRow[]>(
+		`select "id", "run_id", "seq", "kind", "body", "prev_hash", "hash" from "ledger_record" where "run_id" = ? order by "seq"`,
+		[runId]
+	);
+	return rows.map((r) => ({
+		id: r.id,
+		runId: r.run_id,
+		seq: r.seq,
+		kind: r.kind as StoredRecord['kind'],
+		body: r.body,
+		prevHash: r.prev_hash,
+		hash: r.hash
+	}));
 }
 
-/** One run's chain as {@link chainsInOrder} yields it. */
-export interface RunChain {
+interface TextRow extends Omit<BodyRow, 'body'> {
+	canonical: string;
+}
+
+/** A run's records in chain order with their stored canonical text, for `verifyChain` with `storedTextHash`. */
+export async function textChainOf(em: EntityManager, runId: string): Promise<StoredText[]> {
+	const rows = await em.execute<TextRow[]>(
+		`select "id", "run_id", "seq", "kind", "canonical", "prev_hash", "hash" from "ledger_record" where "run_id" = ? order by "seq"`,
+		[runId]
+	);
+	return rows.map((r) => ({
+		id: r.id,
+		runId: r.run_id,
+		seq: r.seq,
+		kind: r.kind as StoredText['kind'],
+		canonical: r.canonical,
+		prevHash: r.prev_hash,
+		hash: r.hash
+	}));
+}
+
+/** One run's chain as {@link chainsInOrder} and {@link textChainsInOrder} yield it. */
+export interface RunChain<R> {
 	runId: string;
-	records: StoredRecord[];
+	records: R[];
+}
+
+/** Groups rows that arrive in `(run_id, seq)` order into one chain per run. */
+class ChainGrouper<R extends { runId: string }> {
+	private current: RunChain<R> | null = null;
+
+	/** The chain `row` closes, if it starts another run. */
+	add(row: R): RunChain<R> | null {
+		let closed: RunChain<R> | null = null;
+		if (this.current && this.current.runId !== row.runId) {
+			closed = this.current;
+			this.current = null;
+		}
+		this.current ??= { runId: row.runId, records: [] };
+		this.current.records.push(row);
+		return closed;
+	}
+
+	end(): RunChain<R> | null {
+		return this.current;
+	}
 }
 
 /**
- * Every run's chain that has records, in `run_id` order, each in `seq` order. Pages of `page` rows; a run cut by a
- * page boundary is yielded once, whole, after the next page. The next page is fetched while the caller works on this
- * one (a second pooled connection).
+ * Every run's chain that has records, in `run_id` order, each in `seq` order, with bodies: pages of `page` rows by
+ * keyset on the `(run_id, seq)` unique index, the next page fetched while the caller works on this one.
  */
-export async function* chainsInOrder(em: EntityManager, page = 2_000): AsyncGenerator<RunChain> {
-	const fetch = (after: Row | null) =>
+export async function* chainsInOrder(em: EntityManager, page = 2_000): AsyncGenerator<RunChain<StoredRecord>> {
+	const fetch = (after: BodyRow | null) =>
 		after
-			? em.execute<Row[]>(
-					`select ${COLUMNS} from "ledger_record" where ("run_id", "seq") > (?, ?) order by "run_id", "seq" limit ?`,
+			? em.execute<BodyRow[]>(
+					`select "id", "run_id", "seq", "kind", "body", "prev_hash", "hash" from "ledger_record" where ("run_id", "seq") > (?, ?) order by "run_id", "seq" limit ?`,
 					[after.run_id, after.seq, page]
 				)
-			: em.execute<Row[]>(`select ${COLUMNS} from "ledger_record" order by "run_id", "seq" limit ?`, [page]);
-	let current: RunChain | null = null;
-	let pending: Promise<Row[]> | null = fetch(null);
+			: em.execute<BodyRow[]>(
+					`select "id", "run_id", "seq", "kind", "body", "prev_hash", "hash" from "ledger_record" order by "run_id", "seq" limit ?`,
+					[page]
+				);
+	const chains = new ChainGrouper<StoredRecord>();
+	let pending: Promise<BodyRow[]> | null = fetch(null);
 	while (pending) {
-		const rows: Row[] = await pending;
-		// The next page is read while this one is verified.
+		const rows: BodyRow[] = await pending;
 		pending = rows.length === page ? fetch(rows[rows.length - 1]) : null;
-		for (const row of rows) {
-			if (current && current.runId !== row.run_id) {
-				yield current;
-				current = null;
-			}
-			current ??= { runId: row.run_id, records: [] };
-			current.records.push(toStored(row));
+		for (const r of rows) {
+			const closed = chains.add({
+				id: r.id,
+				runId: r.run_id,
+				seq: r.seq,
+				kind: r.kind as StoredRecord['kind'],
+				body: r.body,
+				prevHash: r.prev_hash,
+				hash: r.hash
+			});
+			if (closed) yield closed;
 		}
 	}
-	if (current) yield current;
+	const last = chains.end();
+	if (last) yield last;
+}
+
+/** The COPY's columns, in the order {@link textChainsInOrder} reads them. */
+const TEXT_COPY =
+	`copy (select "run_id"::text, "seq", "id"::text, "kind", "prev_hash", "hash", "canonical" ` +
+	`from "ledger_record" order by "run_id", "seq") to stdout (format binary)`;
+
+/**
+ * Calls `onChain` for every run's chain that has records, in `run_id` order, each in `seq` order, with the canonical
+ * text as the bytes PostgreSQL sent (a view of the stream's chunk, never decoded): one binary `COPY` on a pooled
+ * connection of its own, read as it streams, so PostgreSQL produces rows while this process hashes them. Should
+ * `onChain` throw, the rest of the data is still read (so the connection goes back to the pool clean) and then the
+ * error is thrown.
+ */
+export async function eachTextChain(em: EntityManager, onChain: (chain: RunChain<StoredText>) => void): Promise<void> {
+	await withPooledClient(em, async (client) => {
+		const stream = client.query(copyTo(TEXT_COPY));
+		const reader = new CopyBinaryReader();
+		const chains = new ChainGrouper<StoredText>();
+		let failure: { error: unknown } | null = null;
+		const hand = (chain: RunChain<StoredText> | null) => {
+			if (!chain || failure) return;
+			try {
+				onChain(chain);
+			} catch (error) {
+				failure = { error };
+			}
+		};
+		// A run's records arrive together: its id is decoded once, not once per record.
+		let runBytes: Buffer | null = null;
+		let runId = '';
+		for await (const chunk of stream as AsyncIterable<Buffer>) {
+			for (const f of reader.push(chunk)) {
+				if (runBytes === null || !f[0]!.equals(runBytes)) runId = f[0]!.toString('latin1');
+				runBytes = f[0]!;
+				hand(
+					chains.add({
+						runId,
+						seq: f[1]!.readInt32BE(0),
+						id: f[2]!.toString('latin1'),
+						kind: f[3]!.toString('latin1') as StoredText['kind'],
+						prevHash: f[4] === null ? null : f[4].toString('latin1'),
+						hash: f[5]!.toString('latin1'),
+						canonical: f[6]!
+					})
+				);
+			}
+		}
+		reader.finish();
+		hand(chains.end());
+		if (failure) throw (failure as { error: unknown }).error;
+	});
 }

@@ -1,6 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { StoredRecord } from '../../ledger/record';
+import type { SealedRecord, StoredRecord } from '../../ledger/record';
 import { LedgerRecord, type ILedgerRecord, type IRun } from '../db/entities';
+import { withPooledClient } from '../db/pooled-client';
 
 /** One stored record by its client id (in any run), or null. */
 export function findById(em: EntityManager, id: string): Promise<ILedgerRecord | null> {
@@ -41,13 +42,13 @@ export interface RecordColumns {
  * Queues the INSERT of an appended record (the only write the ledger ever sees). Call with the run's row lock held
  * (`runs.lockForAppend`), and advance the run's head in the same transaction.
  */
-export function insert(tx: EntityManager, run: IRun, record: StoredRecord, columns: RecordColumns): ILedgerRecord {
+export function insert(tx: EntityManager, run: IRun, record: SealedRecord, columns: RecordColumns): ILedgerRecord {
 	const row = tx.create(LedgerRecord, {
 		id: record.id,
 		run,
 		seq: record.seq,
 		kind: record.kind,
-		body: record.body,
+		canonical: record.canonical,
 		prevHash: record.prevHash,
 		hash: record.hash,
 		...columns
@@ -99,7 +100,7 @@ const RECORD_COLUMNS = [
 	'run_id',
 	'seq',
 	'kind',
-	'body',
+	'canonical',
 	'prev_hash',
 	'hash',
 	'submission_hash',
@@ -114,16 +115,16 @@ const RECORD_COLUMNS = [
 	.map((n) => `"${n}"`)
 	.join(', ');
 /** `?` placeholders for {@link recordValues}, with the casts the values need. */
-const RECORD_PLACEHOLDERS = '?, ?, ?, ?, ?::jsonb, ?, ?, ?, ?, ?, ?, ?::timestamptz, ?::timestamptz, ?, ?';
+const RECORD_PLACEHOLDERS = '?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?::timestamptz, ?::timestamptz, ?, ?';
 
 /** The values of {@link RECORD_COLUMNS} for one appended record. */
-function recordValues(record: StoredRecord, c: RecordColumns): unknown[] {
+function recordValues(record: SealedRecord, c: RecordColumns): unknown[] {
 	return [
 		record.id,
 		record.runId,
 		record.seq,
 		record.kind,
-		JSON.stringify(record.body),
+		record.canonical,
 		record.prevHash,
 		record.hash,
 		c.submissionHash,
@@ -148,7 +149,7 @@ function recordValues(record: StoredRecord, c: RecordColumns): unknown[] {
 export async function insertAndAdvance(
 	tx: EntityManager,
 	run: IRun,
-	record: StoredRecord,
+	record: SealedRecord,
 	c: RecordColumns,
 	opts: { unlessLogged?: UnlessLogged } = {}
 ): Promise<boolean> {
@@ -214,15 +215,6 @@ const FAST_APPEND =
 	`update "run" set "head_hash" = ?, "record_count" = ?, "updated_at" = ?::timestamptz ` +
 	`where "id" = ? and exists (select 1 from "ins")`;
 
-/** The pg client of the ORM's pool, typed as little as the fast append uses. */
-interface PooledClient {
-	query(text: string): Promise<{ rowCount: number | null }[] | { rowCount: number | null }>;
-}
-interface ConnectionPool {
-	acquireConnection(): Promise<PooledClient>;
-	releaseConnection(c: PooledClient): Promise<unknown>;
-}
-
 /**
  * One append in ONE round trip and its own transaction: a two-statement simple query, which PostgreSQL runs as one
  * implicit transaction (rolled back whole on any error). The first statement takes the run's row lock
@@ -238,7 +230,7 @@ interface ConnectionPool {
  */
 export async function lockAndAppendIfHead(
 	em: EntityManager,
-	record: StoredRecord,
+	record: SealedRecord,
 	c: RecordColumns,
 	expect: ExpectedHead,
 	guard: { unlessLogged: UnlessLogged; activeDevice: string | null }
@@ -262,12 +254,9 @@ export async function lockAndAppendIfHead(
 		c.serverTime.toISOString(),
 		record.runId
 	]);
-	const pool = em.getConnection().getKnex().client as ConnectionPool;
-	const client = await pool.acquireConnection();
-	try {
-		const results = await client.query(text);
+	return withPooledClient(em, async (client) => {
+		// A multi-statement simple query answers with one result per statement.
+		const results = (await client.query(text)) as unknown as { rowCount: number | null }[];
 		return Array.isArray(results) && results.length === 2 && results[1].rowCount === 1;
-	} finally {
-		await pool.releaseConnection(client);
-	}
+	});
 }

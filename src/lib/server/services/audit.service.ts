@@ -18,8 +18,8 @@ import {
 	type IUser,
 	type RunState
 } from '../db/entities';
-import type { StoredRecord } from '../../ledger/record';
-import { serverRecordHash } from '../ledger-hash';
+import type { ChainLink } from '../../ledger/record';
+import { serverRecordHash, storedTextHash } from '../ledger-hash';
 import * as anchors from '../repositories/anchors';
 import * as ledgerRead from '../repositories/ledger-read';
 import * as runRecordRead from '../repositories/run-record-read';
@@ -57,11 +57,20 @@ function toChainAnchor(a: ILedgerAnchor): ChainAnchor {
 	};
 }
 
-/** Hashes with node:crypto (`serverRecordHash`, held equal to the pure `recordHash` by ledger-hash.test.ts). */
-function check(runId: string, records: StoredRecord[], runAnchors: ILedgerAnchor[]): RunVerification {
+/**
+ * `records` verified with `hash` against the run's anchors. The server hashes with node:crypto: the stored canonical
+ * text (`storedTextHash`) or, when the ledger's body no longer derives from it, the re-encoded body
+ * (`serverRecordHash`, held equal to the pure `recordHash` by ledger-hash.test.ts).
+ */
+function check<T extends ChainLink>(
+	runId: string,
+	records: T[],
+	hash: (r: T) => string,
+	runAnchors: ILedgerAnchor[]
+): RunVerification {
 	const result = runAnchors.length
-		? verifyAgainstAnchors(records, runAnchors.map(toChainAnchor), serverRecordHash)
-		: verifyChain(records, serverRecordHash);
+		? verifyAgainstAnchors(records, runAnchors.map(toChainAnchor), hash)
+		: verifyChain(records, hash);
 	if (result.ok) return { runId, ok: true, head: result.head, count: result.count, anchors: runAnchors.length };
 	return {
 		runId,
@@ -78,7 +87,10 @@ function check(runId: string, records: StoredRecord[], runAnchors: ILedgerAnchor
 export async function verifyRun(em: EntityManager, runId: string): Promise<RunVerification | null> {
 	const run = await em.findOne(Run, { id: runId });
 	if (!run) return null;
-	return check(runId, await ledgerRead.chainOf(em, runId), await anchors.listForRun(em, runId));
+	const runAnchors = await anchors.listForRun(em, runId);
+	return (await ledgerRead.hashSource(em)) === 'text'
+		? check(runId, await ledgerRead.textChainOf(em, runId), storedTextHash, runAnchors)
+		: check(runId, await ledgerRead.chainOf(em, runId), serverRecordHash, runAnchors);
 }
 
 export interface AllVerification {
@@ -91,9 +103,9 @@ export interface AllVerification {
 }
 
 /**
- * {@link verifyRun} over every run: the chains read as plain rows in `(run_id, seq)` pages (`ledger-read`), so
- * memory stays bounded by a page and the largest run; runs without records are checked against their anchors too.
- * Failures are listed in the order the runs were created.
+ * {@link verifyRun} over every run: the chains streamed in `(run_id, seq)` order (`ledger-read`), so memory stays
+ * bounded by the largest run; runs without records are checked against their anchors too. Failures are listed in the
+ * order the runs were created.
  */
 export async function verifyAll(em: EntityManager): Promise<AllVerification> {
 	const ids = (await em.find(Run, {}, { fields: ['id'], orderBy: { createdAt: 'asc' } })).map((r) => r.id);
@@ -112,13 +124,18 @@ export async function verifyAll(em: EntityManager): Promise<AllVerification> {
 	};
 	const order = new Map(ids.map((id, i) => [id, i]));
 	const seen = new Set<string>();
-	for await (const chain of ledgerRead.chainsInOrder(em)) {
-		if (!order.has(chain.runId)) continue; // a run created after the list was read: the next verify sees it
+	const take = <T extends ChainLink>(chain: ledgerRead.RunChain<T>, hash: (r: T) => string) => {
+		if (!order.has(chain.runId)) return; // a run created after the list was read: the next verify sees it
 		seen.add(chain.runId);
 		out.records += chain.records.length;
-		tally(check(chain.runId, chain.records, byRun.get(chain.runId) ?? []));
+		tally(check(chain.runId, chain.records, hash, byRun.get(chain.runId) ?? []));
+	};
+	if ((await ledgerRead.hashSource(em)) === 'text') {
+		await ledgerRead.eachTextChain(em, (chain) => take(chain, storedTextHash));
+	} else {
+		for await (const chain of ledgerRead.chainsInOrder(em)) take(chain, serverRecordHash);
 	}
-	for (const id of ids) if (!seen.has(id)) tally(check(id, [], byRun.get(id) ?? []));
+	for (const id of ids) if (!seen.has(id)) tally(check(id, [], serverRecordHash, byRun.get(id) ?? []));
 	out.failures.sort((a, b) => order.get(a.runId)! - order.get(b.runId)!);
 	return out;
 }

@@ -5,12 +5,12 @@
  */
 import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { appendTo } from '../../ledger/chain';
 import { canonicalize, type JsonValue } from '../../ledger/jcs';
 import type { RecordKind, StoredRecord } from '../../ledger/record';
 import { uuidv7 } from '../../ledger/uuid-v7';
 import { ENGINE_VERSION } from '../../procedure/version';
 import type { IRun } from '../db/entities';
+import { sealNext } from '../ledger-hash';
 import * as ledger from '../repositories/ledger';
 
 export interface DeskSigner {
@@ -37,7 +37,7 @@ export function appendDeskRecord(
 		})
 	) as JsonValue;
 	const head = run.headHash ? { runId: run.id, seq: run.recordCount, hash: run.headHash } : null;
-	const stored = appendTo(head, { id: uuidv7(), runId: run.id, kind, body });
+	const stored = sealNext(head, { id: uuidv7(), runId: run.id, kind, body });
 	ledger.insert(tx, run, stored, {
 		submissionHash: createHash('sha256').update(canonicalize(body), 'utf8').digest('hex'),
 		signerId: signer.id,

@@ -13,7 +13,6 @@ import { exact, gt, mul } from '../../checks/exact';
 import { DEFAULT_MIN_SHARE } from '../../checks/torque';
 import { findUnit } from '../../checks/units';
 import { canonicalize, type JsonValue } from '../../ledger/jcs';
-import { appendTo } from '../../ledger/chain';
 import type { RecordDraft, RecordKind, StoredRecord } from '../../ledger/record';
 import { uuidv7 } from '../../ledger/uuid-v7';
 import { isoDate } from '../../registers/dates';
@@ -22,7 +21,7 @@ import { ENGINE_VERSION } from '../../procedure/version';
 import { TOOL_STATUS_TEXT } from '../../registers/tool-status';
 import { attemptsLeft, isLocked, lockRemainingMs, recordFailure, recordSuccess } from '../../signing/pin-lockout';
 import type { ILedgerRecord, IProcedureVersion, IRun, IUser } from '../db/entities';
-import { serverRecordHash, sha256Hex as sha256 } from '../ledger-hash';
+import { sealNext, sha256Hex as sha256 } from '../ledger-hash';
 import * as adminLog from '../repositories/admin-log';
 import * as ledger from '../repositories/ledger';
 import * as pinLocks from '../repositories/pin-locks';
@@ -553,7 +552,7 @@ export function appendServerRecord(
 	serverTime: Date
 ): StoredRecord {
 	const head = run.headHash ? { runId: run.id, seq: run.recordCount, hash: run.headHash } : null;
-	const stored = appendTo(head, { id: uuidv7(), runId: run.id, kind, body }, serverRecordHash);
+	const stored = sealNext(head, { id: uuidv7(), runId: run.id, kind, body });
 	ledger.insert(tx, run, stored, {
 		submissionHash: sha256(canonicalize(body)),
 		signerId: null,
@@ -625,7 +624,7 @@ async function appendFast(
 	if (await lateRecordRefusal(em, { state: seen.state, reworkSteps: seen.reworkSteps } as IRun, s)) return null;
 	const serverTime = clock();
 	const head = seen.headHash ? { runId, seq: seen.recordCount, hash: seen.headHash } : null;
-	const stored = appendTo(head, { id: s.id, runId, kind: s.kind, body: recordBody(p, serverTime) }, serverRecordHash);
+	const stored = sealNext(head, { id: s.id, runId, kind: s.kind, body: recordBody(p, serverTime) });
 	try {
 		const guard = { unlessLogged: moveDecision(runId), activeDevice: enrolledDeviceOf(s) };
 		if (!(await ledger.lockAndAppendIfHead(em, stored, recordColumns(p, serverTime), seen, guard))) return null;
@@ -707,7 +706,7 @@ async function append(
 			const body = recordBody(p, serverTime);
 			const head = run.headHash ? { runId, seq: run.recordCount, hash: run.headHash } : null;
 			const draft: RecordDraft = { id: s.id, runId, kind: s.kind, body };
-			const stored = appendTo(head, draft, serverRecordHash);
+			const stored = sealNext(head, draft);
 			// One statement for the record and the run's head, outside the unit of work (the hot path).
 			const inserted = await ledger.insertAndAdvance(
 				tx,
