@@ -44,7 +44,8 @@ export const LedgerRecord = defineEntity({
 		run: () => p.manyToOne(Run),
 		seq: p.integer(),
 		kind: p.string().length(32),
-		canonical: p.text(),
+		// Lazy: verify reads it as plain rows; entities (the views, dispositions) only need `body`.
+		canonical: p.text().lazy(),
 		body: p.json<JsonValue>().generated(`(("canonical"::jsonb) -> 'body') stored`).ignoreSchemaChanges('type', 'extra'),
 		prevHash: p.string().length(64).nullable(),
 		hash: p.string().length(64).unique(),
