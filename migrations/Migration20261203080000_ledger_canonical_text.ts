@@ -22,11 +22,15 @@ export class Migration20261203080000_ledger_canonical_text extends Migration {
 	override async up(): Promise<void> {
 		await this.execute(`alter table "ledger_record" add column "canonical" text null;`);
 		await this.execute(`alter table "ledger_record" disable trigger "ledger_record_append_only";`);
+		// Pages by primary key (keyset): a `where canonical is null` page would scan the whole table every time.
+		let after = '00000000-0000-0000-0000-000000000000';
 		for (;;) {
 			const rows = (await this.execute(
-				`select "id", "run_id", "seq", "kind", "body", "prev_hash" from "ledger_record" where "canonical" is null order by "id" limit ${PAGE}`
+				`select "id", "run_id", "seq", "kind", "body", "prev_hash" from "ledger_record" where "id" > ? order by "id" limit ${PAGE}`,
+				[after]
 			)) as unknown as OldRow[];
 			if (rows.length === 0) break;
+			after = rows[rows.length - 1].id;
 			const texts = rows.map((r) => ({
 				id: r.id,
 				canonical: canonicalRecord({

@@ -35,13 +35,14 @@ function superuserOnScratch(): string {
 }
 
 /** Records as they were stored before the migration, in one run whose foreign keys are not checked (replica role). */
-function oldRecords(): (LedgerRecord & { hash: string })[] {
-	const runId = uuidv7();
-	const bodies: JsonValue[] = [
+function oldRecords(
+	bodies: JsonValue[] = [
 		{ stepIndex: 0, text: 'Quotes " and \\ backslash, “typographic”, ü, 𝄞 and a tab\t.' },
 		{ stepIndex: 1, entries: [{ checkpointId: 'bore-1', entry: { readings: ['22.010'] } }], n: 12.5, none: null },
 		{ stepIndex: 2, list: [], deep: { b: 1, a: [true, false] } }
-	];
+	]
+): (LedgerRecord & { hash: string })[] {
+	const runId = uuidv7();
 	const out: (LedgerRecord & { hash: string })[] = [];
 	for (const [i, body] of bodies.entries()) {
 		const r: LedgerRecord = {
@@ -59,13 +60,15 @@ function oldRecords(): (LedgerRecord & { hash: string })[] {
 
 describe('ledger canonical text', () => {
 	const old = oldRecords();
+	// More than one page of the migration's backfill (2,000 rows a page).
+	const many = oldRecords(Array.from({ length: 2_345 }, (_, i) => ({ stepIndex: i % 7, text: `Note ${i}.` })));
 
 	beforeAll(async () => {
 		await db.create();
 		await migrateDb(db.ownerUrl, db.appUrl, [`--to=${BEFORE}`]);
 		await withClient(superuserOnScratch(), async (c) => {
 			await c.query(`set session_replication_role = replica`);
-			for (const r of old)
+			for (const r of [...old, ...many])
 				await c.query(
 					`insert into ledger_record (id, run_id, seq, kind, body, prev_hash, hash, submission_hash, signer_role, server_time, engine_version)
 					values ($1, $2, $3, $4, $5, $6, $7, $7, 'technician', now(), 'old')`,
@@ -88,6 +91,7 @@ describe('ledger canonical text', () => {
 		const rows = await rowsOf(old[0].runId);
 		expect(rows.map((r) => r.canonical)).toEqual(old.map((r) => canonicalRecord(r)));
 		expect(rows.map((r) => r.body)).toEqual(old.map((r) => r.body));
+		expect((await rowsOf(many[0].runId)).map((r) => r.canonical)).toEqual(many.map((r) => canonicalRecord(r)));
 		const orm = await MikroORM.init(ormOptions(db.ownerUrl));
 		try {
 			expect(await ledgerRead.hashSource(orm.em.fork())).toBe('text');
