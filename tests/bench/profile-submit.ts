@@ -30,8 +30,9 @@ try {
 	// Node CPU per stored record over the submit phase (the profiler's own sampling cost included).
 	const us = (n: number) => (n / t.stored).toFixed(0);
 	console.log(
-		`${t.submitPerS.toFixed(0)} records/s vs ${t.insertPerS.toFixed(0)} INSERT/s ` +
-			`(ratio ${(t.submitPerS / t.insertPerS).toFixed(3)}); Node CPU per record ${us(cpu!.user)} µs user + ` +
+		`${t.submitPerS.toFixed(0)} records/s vs ${t.ledgerInsertPerS.toFixed(0)} INSERT/s into ledger_record ` +
+			`(ratio ${(t.submitPerS / t.ledgerInsertPerS).toFixed(3)}; bare copy ${t.insertPerS.toFixed(0)}/s, ` +
+			`${(t.submitPerS / t.insertPerS).toFixed(3)}); Node CPU per record ${us(cpu!.user)} µs user + ` +
 			`${us(cpu!.system)} µs system${profiling ? `; profile in ${out}` : ''}`
 	);
 } finally {
