@@ -4,13 +4,14 @@
  * when someone with direct access makes `body` an ordinary column again.
  */
 import { MikroORM } from '@mikro-orm/postgresql';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { ormOptions } from '../../mikro-orm.config';
 import { withClient } from '../../scripts/lib/postgres';
 import { verifyChain } from '../../src/lib/ledger/chain';
 import type { JsonValue } from '../../src/lib/ledger/jcs';
 import { canonicalRecord, type LedgerRecord } from '../../src/lib/ledger/record';
 import { uuidv7 } from '../../src/lib/ledger/uuid-v7';
+import { CopyBinaryReader, CopyFormatError } from '../../src/lib/server/db/copy-binary';
 import type { IUser } from '../../src/lib/server/db/entities';
 import { serverRecordHash, storedTextHash } from '../../src/lib/server/ledger-hash';
 import * as ledgerRead from '../../src/lib/server/repositories/ledger-read';
@@ -132,6 +133,29 @@ describe('ledger canonical text', () => {
 		expect(down[0].generated).toBe('');
 		expect(await migrateDb(db.ownerUrl, db.appUrl)).toEqual([CANONICAL]);
 		expect((await rowsOf(old[0].runId)).map((r) => r.canonical)).toEqual(old.map((r) => canonicalRecord(r)));
+	});
+
+	it('a COPY that stops part-way closes its connection instead of handing it back to the pool mid-COPY', async () => {
+		const orm = await MikroORM.init(ormOptions(db.appUrl));
+		const push = vi.spyOn(CopyBinaryReader.prototype, 'push').mockImplementationOnce(() => {
+			throw new CopyFormatError('bytes that are not binary COPY (test)');
+		});
+		try {
+			await expect(verifyAll(orm.em.fork())).rejects.toThrow(/not binary COPY \(test\)/);
+			const copying = () =>
+				withClient(superuserOnScratch(), (c) =>
+					c.query<{ n: string }>(
+						`select count(*) as n from pg_stat_activity where datname = current_database() and query like 'copy (select "run_id"%'`
+					)
+				).then((r) => Number(r.rows[0].n));
+			for (let i = 0; i < 50 && (await copying()) > 0; i++) await new Promise((r) => setTimeout(r, 100));
+			expect(await copying()).toBe(0);
+			// And the pool still serves a whole verify.
+			expect((await verifyAll(orm.em.fork())).failed).toBe(0);
+		} finally {
+			push.mockRestore();
+			await orm.close(true);
+		}
 	});
 
 	it('a body no longer generated from the text (changed by hand) makes verify hash the bodies, and find the edit', async () => {

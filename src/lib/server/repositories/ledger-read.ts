@@ -168,22 +168,32 @@ export async function eachTextChain(em: EntityManager, onChain: (chain: RunChain
 		// A run's records arrive together: its id is decoded once, not once per record.
 		let runBytes: Buffer | null = null;
 		let runId = '';
-		for await (const chunk of stream as AsyncIterable<Buffer>) {
-			for (const f of reader.push(chunk)) {
-				if (runBytes === null || !f[0]!.equals(runBytes)) runId = f[0]!.toString('latin1');
-				runBytes = f[0]!;
-				hand(
-					chains.add({
-						runId,
-						seq: f[1]!.readInt32BE(0),
-						id: f[2]!.toString('latin1'),
-						kind: f[3]!.toString('latin1') as StoredText['kind'],
-						prevHash: f[4] === null ? null : f[4].toString('latin1'),
-						hash: f[5]!.toString('latin1'),
-						canonical: f[6]!
-					})
-				);
+		async function readRows() {
+			for await (const chunk of stream as AsyncIterable<Buffer>) {
+				for (const f of reader.push(chunk)) {
+					if (runBytes === null || !f[0]!.equals(runBytes)) runId = f[0]!.toString('latin1');
+					runBytes = f[0]!;
+					hand(
+						chains.add({
+							runId,
+							seq: f[1]!.readInt32BE(0),
+							id: f[2]!.toString('latin1'),
+							kind: f[3]!.toString('latin1') as StoredText['kind'],
+							prevHash: f[4] === null ? null : f[4].toString('latin1'),
+							hash: f[5]!.toString('latin1'),
+							canonical: f[6]!
+						})
+					);
+				}
 			}
+		}
+		try {
+			await readRows();
+		} catch (error) {
+			// The COPY stopped part-way (bytes that are not binary COPY, a broken connection): the connection may still be
+			// in COPY mode, so it is closed — the pool then discards it instead of handing it to the next query.
+			await client.end().catch(() => {});
+			throw error;
 		}
 		reader.finish();
 		hand(chains.end());
