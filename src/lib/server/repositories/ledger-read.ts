@@ -11,7 +11,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { to as copyTo } from 'pg-copy-streams';
 import type { JsonValue } from '../../ledger/jcs';
-import type { StoredRecord } from '../../ledger/record';
+import type { ChainLink, StoredRecord } from '../../ledger/record';
 import { CopyBinaryReader } from '../db/copy-binary';
 import { withPooledClient } from '../db/pooled-client';
 import type { StoredText } from '../ledger-hash';
@@ -27,14 +27,34 @@ export async function hashSource(em: EntityManager): Promise<'text' | 'body'> {
 	return rows[0]?.generated === 's' ? 'text' : 'body';
 }
 
-interface BodyRow {
+/** The columns a chain is checked on, as PostgreSQL names them. */
+interface LinkRow {
 	id: string;
 	run_id: string;
 	seq: number;
 	kind: string;
-	body: JsonValue;
 	prev_hash: string | null;
 	hash: string;
+}
+
+interface BodyRow extends LinkRow {
+	body: JsonValue;
+}
+
+interface TextRow extends LinkRow {
+	canonical: string;
+}
+
+/** A row's chain fields under the ledger's names. */
+function linkOf(r: LinkRow): ChainLink {
+	return {
+		id: r.id,
+		runId: r.run_id,
+		seq: r.seq,
+		kind: r.kind as ChainLink['kind'],
+		prevHash: r.prev_hash,
+		hash: r.hash
+	};
 }
 
 /** A run's records in chain order with their bodies, as `verifyChain` takes them with `serverRecordHash`. */
@@ -43,19 +63,7 @@ export async function chainOf(em: EntityManager, runId: string): Promise<StoredR
 		`select "id", "run_id", "seq", "kind", "body", "prev_hash", "hash" from "ledger_record" where "run_id" = ? order by "seq"`,
 		[runId]
 	);
-	return rows.map((r) => ({
-		id: r.id,
-		runId: r.run_id,
-		seq: r.seq,
-		kind: r.kind as StoredRecord['kind'],
-		body: r.body,
-		prevHash: r.prev_hash,
-		hash: r.hash
-	}));
-}
-
-interface TextRow extends Omit<BodyRow, 'body'> {
-	canonical: string;
+	return rows.map((r) => ({ ...linkOf(r), body: r.body }));
 }
 
 /** A run's records in chain order with their stored canonical text, for `verifyChain` with `storedTextHash`. */
@@ -64,18 +72,10 @@ export async function textChainOf(em: EntityManager, runId: string): Promise<Sto
 		`select "id", "run_id", "seq", "kind", "canonical", "prev_hash", "hash" from "ledger_record" where "run_id" = ? order by "seq"`,
 		[runId]
 	);
-	return rows.map((r) => ({
-		id: r.id,
-		runId: r.run_id,
-		seq: r.seq,
-		kind: r.kind as StoredText['kind'],
-		canonical: r.canonical,
-		prevHash: r.prev_hash,
-		hash: r.hash
-	}));
+	return rows.map((r) => ({ ...linkOf(r), canonical: r.canonical }));
 }
 
-/** One run's chain as {@link chainsInOrder} and {@link textChainsInOrder} yield it. */
+/** One run's chain as {@link chainsInOrder} yields it and {@link eachTextChain} hands it on. */
 export interface RunChain<R> {
 	runId: string;
 	records: R[];
@@ -123,15 +123,7 @@ export async function* chainsInOrder(em: EntityManager, page = 2_000): AsyncGene
 		const rows: BodyRow[] = await pending;
 		pending = rows.length === page ? fetch(rows[rows.length - 1]) : null;
 		for (const r of rows) {
-			const closed = chains.add({
-				id: r.id,
-				runId: r.run_id,
-				seq: r.seq,
-				kind: r.kind as StoredRecord['kind'],
-				body: r.body,
-				prevHash: r.prev_hash,
-				hash: r.hash
-			});
+			const closed = chains.add({ ...linkOf(r), body: r.body });
 			if (closed) yield closed;
 		}
 	}
@@ -139,7 +131,7 @@ export async function* chainsInOrder(em: EntityManager, page = 2_000): AsyncGene
 	if (last) yield last;
 }
 
-/** The COPY's columns, in the order {@link textChainsInOrder} reads them. */
+/** The COPY's columns, in the order {@link eachTextChain} reads them. */
 const TEXT_COPY =
 	`copy (select "run_id"::text, "seq", "id"::text, "kind", "prev_hash", "hash", "canonical" ` +
 	`from "ledger_record" order by "run_id", "seq") to stdout (format binary)`;
