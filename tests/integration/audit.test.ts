@@ -167,6 +167,48 @@ describe('verify: proof that a run’s ledger is unaltered', () => {
 		expect(row.n).toBe('1');
 	});
 
+	it('verify all, reading the ledger in heap order, answers for every run exactly as verifyRun does', async () => {
+		// An intact run whose first record now lies after the others in the heap (rewritten in place, unchanged), an
+		// anchored intact run, and an alter-and-rehash caught only by its anchor — beside the tampered runs above.
+		const moved = await runWithRecords();
+		const first = (await stored(moved.runId))[0];
+		await asSuperuser('update ledger_record set canonical = canonical where id = $1', [first.id]);
+		const heapOrder = await withClient(superuser(), (c) =>
+			c.query<{ seq: number }>('select seq from ledger_record where run_id = $1 order by ctid', [moved.runId])
+		);
+		expect(heapOrder.rows.map((r) => r.seq)).not.toEqual([1, 2, 3]);
+		const anchored = await runWithRecords();
+		await recordAnchor(orm.em.fork(), anchored.runId, 'daily_digest');
+		const rehashed = await runWithRecords();
+		await recordAnchor(orm.em.fork(), rehashed.runId, 'manual');
+		const forged = (await stored(rehashed.runId)).map((r) => ({ ...r }));
+		forged[2].body = { stepIndex: 0, text: 'No scoring.' };
+		forged[2].hash = recordHash(forged[2]);
+		await asSuperuser('update ledger_record set canonical = $2, hash = $3 where id = $1', [
+			forged[2].id,
+			canonicalRecord(forged[2]),
+			forged[2].hash
+		]);
+
+		const all = await verifyAll(orm.em.fork());
+		const ids = await withClient(urls.ownerUrl, (c) =>
+			c.query<{ id: string }>('select id from run order by created_at')
+		);
+		const one = await Promise.all(ids.rows.map((r) => verifyRun(orm.em.fork(), r.id)));
+		expect(all.failures).toEqual(one.filter((v) => v && !v.ok));
+		expect([all.runs, all.intact]).toEqual([one.length, one.filter((v) => v?.ok).length]);
+		const counted = await withClient(urls.ownerUrl, (c) =>
+			c.query<{ n: string }>('select count(*) as n from ledger_record')
+		);
+		expect(all.records).toBe(Number(counted.rows[0].n));
+		expect(one.find((v) => v?.runId === moved.runId)).toMatchObject({ ok: true, count: 3 });
+		expect(one.find((v) => v?.runId === anchored.runId)).toMatchObject({ ok: true, anchors: 1 });
+		expect(all.failures.find((f) => f.runId === rehashed.runId)).toMatchObject({
+			reason: 'anchor_mismatch',
+			position: 3
+		});
+	});
+
 	it('the quality home lists the run with its records and the open finding; the run record shows the reading', async () => {
 		const { runId, tech } = await runWithRecords();
 		const queue = await reviewQueue(orm.em.fork());

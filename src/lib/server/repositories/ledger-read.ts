@@ -2,8 +2,8 @@
  * Reads of the ledger for verification, as plain rows (no entity hydrated).
  *
  * Normally verify hashes each record's stored canonical text (`canonical`, from which PostgreSQL generates `body`):
- * one run's chain through `em.execute` (inside the caller's transaction when there is one), or every chain in
- * `(run_id, seq)` order through one binary `COPY` — one statement, so one snapshot, and no per-field decoding.
+ * one run's chain through `em.execute` (inside the caller's transaction when there is one), or every record in heap
+ * order through one binary `COPY` — one statement, so one snapshot, and no per-field decoding.
  * Should the `body` column ever stop being generated from that text (someone with direct access to the database
  * dropping the expression), the text no longer proves what is shown, and verify reads and re-encodes the bodies
  * instead: {@link hashSource} says which.
@@ -75,7 +75,7 @@ export async function textChainOf(em: EntityManager, runId: string): Promise<Sto
 	return rows.map((r) => ({ ...linkOf(r), canonical: r.canonical }));
 }
 
-/** One run's chain as {@link chainsInOrder} yields it and {@link eachTextChain} hands it on. */
+/** One run's chain as {@link chainsInOrder} yields it. */
 export interface RunChain<R> {
 	runId: string;
 	records: R[];
@@ -131,42 +131,38 @@ export async function* chainsInOrder(em: EntityManager, page = 2_000): AsyncGene
 	if (last) yield last;
 }
 
-/** The COPY's columns, in the order {@link eachTextChain} reads them. */
-const TEXT_COPY =
+/**
+ * The COPY {@link eachTextRecord} reads: every record, in whatever order the heap holds them — through the
+ * `(run_id, seq)` index the same COPY delivered 2.3× fewer records a second (audit bench, 100k records), the table's
+ * pages then being read in the order runs were created rather than as they lie.
+ */
+export const TEXT_COPY =
 	`copy (select "run_id"::text, "seq", "id"::text, "kind", "prev_hash", "hash", "canonical" ` +
-	`from "ledger_record" order by "run_id", "seq") to stdout (format binary)`;
+	`from "ledger_record") to stdout (format binary)`;
 
 /**
- * Calls `onChain` for every run's chain that has records, in `run_id` order, each in `seq` order, with the canonical
- * text as the bytes PostgreSQL sent (a view of the stream's chunk, never decoded): one binary `COPY` on a pooled
- * connection of its own, read as it streams, so PostgreSQL produces rows while this process hashes them. Should
- * `onChain` throw, the rest of the data is still read (so the connection goes back to the pool clean) and then the
- * error is thrown.
+ * Calls `onRecord` for every stored record, in heap order (a run's records need not arrive together, nor in `seq`
+ * order), with the canonical text as the bytes PostgreSQL sent (a view of the stream's chunk, valid only during the
+ * call, never decoded): one binary `COPY` — one statement, so one snapshot — on a pooled connection of its own, read
+ * as it streams, so PostgreSQL produces rows while this process hashes them. Should `onRecord` throw, the rest of
+ * the data is still read (so the connection goes back to the pool clean) and then the error is thrown.
  */
-export async function eachTextChain(em: EntityManager, onChain: (chain: RunChain<StoredText>) => void): Promise<void> {
+export async function eachTextRecord(em: EntityManager, onRecord: (record: StoredText) => void): Promise<void> {
 	await withPooledClient(em, async (client) => {
 		const stream = client.query(copyTo(TEXT_COPY));
 		const reader = new CopyBinaryReader();
-		const chains = new ChainGrouper<StoredText>();
 		let failure: { error: unknown } | null = null;
-		const hand = (chain: RunChain<StoredText> | null) => {
-			if (!chain || failure) return;
-			try {
-				onChain(chain);
-			} catch (error) {
-				failure = { error };
-			}
-		};
-		// A run's records arrive together: its id is decoded once, not once per record.
+		// A run's records mostly lie together: its id is decoded once per stretch, not once per record.
 		let runBytes: Buffer | null = null;
 		let runId = '';
 		async function readRows() {
 			for await (const chunk of stream as AsyncIterable<Buffer>) {
 				for (const f of reader.push(chunk)) {
+					if (failure) continue;
 					if (runBytes === null || !f[0]!.equals(runBytes)) runId = f[0]!.toString('latin1');
 					runBytes = f[0]!;
-					hand(
-						chains.add({
+					try {
+						onRecord({
 							runId,
 							seq: f[1]!.readInt32BE(0),
 							id: f[2]!.toString('latin1'),
@@ -174,8 +170,10 @@ export async function eachTextChain(em: EntityManager, onChain: (chain: RunChain
 							prevHash: f[4] === null ? null : f[4].toString('latin1'),
 							hash: f[5]!.toString('latin1'),
 							canonical: f[6]!
-						})
-					);
+						});
+					} catch (error) {
+						failure = { error };
+					}
 				}
 			}
 		}
@@ -188,7 +186,6 @@ export async function eachTextChain(em: EntityManager, onChain: (chain: RunChain
 			throw error;
 		}
 		reader.finish();
-		hand(chains.end());
 		if (failure) throw (failure as { error: unknown }).error;
 	});
 }

@@ -5,6 +5,7 @@
  */
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { verifyAgainstAnchors, verifyChain, type ChainAnchor, type ChainFailureReason } from '../../ledger/chain';
+import { ChainScreen } from '../../ledger/chain-screen';
 import type { RoleName } from '../../accounts/schema';
 import {
 	LedgerRecord,
@@ -103,9 +104,13 @@ export interface AllVerification {
 }
 
 /**
- * {@link verifyRun} over every run: the chains streamed in `(run_id, seq)` order (`ledger-read`), so memory stays
- * bounded by the largest run; runs without records are checked against their anchors too. Failures are listed in the
- * order the runs were created.
+ * {@link verifyRun} over every run, runs without records included; failures listed in the order the runs were
+ * created. Every record is read once, in heap order (`ledger-read`'s `eachTextRecord`), its stored text checked and
+ * hashed, and a {@link ChainScreen} keeps each run's last link: a run it passes, whose heads at its anchors' counts
+ * are the anchored ones, is intact. Any other run — and every run, should the screen give up — is read again in
+ * `seq` order and checked by `verifyChain`/`verifyAgainstAnchors`, which name its first bad record. Should `body`
+ * no longer be generated from the stored text, every chain is read in `(run_id, seq)` order and its bodies
+ * re-encoded instead.
  */
 export async function verifyAll(em: EntityManager): Promise<AllVerification> {
 	const ids = (await em.find(Run, {}, { fields: ['id'], orderBy: { createdAt: 'asc' } })).map((r) => r.id);
@@ -115,7 +120,8 @@ export async function verifyAll(em: EntityManager): Promise<AllVerification> {
 		byRun.set(id, [...(byRun.get(id) ?? []), a]);
 	}
 	const out: AllVerification = { runs: ids.length, intact: 0, failed: 0, records: 0, failures: [] };
-	const tally = (v: RunVerification) => {
+	const tally = (v: RunVerification, records: number) => {
+		out.records += records;
 		if (v.ok) out.intact += 1;
 		else {
 			out.failed += 1;
@@ -123,19 +129,45 @@ export async function verifyAll(em: EntityManager): Promise<AllVerification> {
 		}
 	};
 	const order = new Map(ids.map((id, i) => [id, i]));
-	const seen = new Set<string>();
-	const take = <T extends ChainLink>(chain: ledgerRead.RunChain<T>, hash: (r: T) => string) => {
-		if (!order.has(chain.runId)) return; // a run created after the list was read: the next verify sees it
-		seen.add(chain.runId);
-		out.records += chain.records.length;
-		tally(check(chain.runId, chain.records, hash, byRun.get(chain.runId) ?? []));
-	};
 	if ((await ledgerRead.hashSource(em)) === 'text') {
-		await ledgerRead.eachTextChain(em, (chain) => take(chain, storedTextHash));
+		const anchored = new Map([...byRun].map(([id, list]) => [id, new Set(list.map((a) => a.count))]));
+		const screen = new ChainScreen((runId) => anchored.get(runId));
+		await ledgerRead.eachTextRecord(em, (r) => {
+			if (!order.has(r.runId)) return; // a run created after the list was read: the next verify sees it
+			let ok: boolean;
+			try {
+				ok = storedTextHash(r) === r.hash;
+			} catch {
+				ok = false; // the text is not its row's envelope: the ordered check says so
+			}
+			screen.add(r, ok);
+		});
+		for (const id of ids) {
+			const runAnchors = byRun.get(id) ?? [];
+			const screened = screen.result(id);
+			if (screened.intact && runAnchors.every((a) => screened.heads.get(a.count) === a.head)) {
+				const v: RunVerification = {
+					runId: id,
+					ok: true,
+					head: screened.head,
+					count: screened.count,
+					anchors: runAnchors.length
+				};
+				tally(v, screened.count);
+				continue;
+			}
+			const records = await ledgerRead.textChainOf(em, id);
+			tally(check(id, records, storedTextHash, runAnchors), records.length);
+		}
 	} else {
-		for await (const chain of ledgerRead.chainsInOrder(em)) take(chain, serverRecordHash);
+		const seen = new Set<string>();
+		for await (const chain of ledgerRead.chainsInOrder(em)) {
+			if (!order.has(chain.runId)) continue;
+			seen.add(chain.runId);
+			tally(check(chain.runId, chain.records, serverRecordHash, byRun.get(chain.runId) ?? []), chain.records.length);
+		}
+		for (const id of ids) if (!seen.has(id)) tally(check(id, [], serverRecordHash, byRun.get(id) ?? []), 0);
 	}
-	for (const id of ids) if (!seen.has(id)) tally(check(id, [], serverRecordHash, byRun.get(id) ?? []));
 	out.failures.sort((a, b) => order.get(a.runId)! - order.get(b.runId)!);
 	return out;
 }
