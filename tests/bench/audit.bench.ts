@@ -200,17 +200,19 @@ async function readAndHash(em: EntityManager, sql: string, hashAt: number, textA
 		domain.copy(preimage);
 		let rows = 0;
 		for await (const chunk of stream as AsyncIterable<Buffer>) {
-			for (const f of reader.push(chunk)) {
-				const text = f[textAt]!;
-				if (domain.length + text.length > preimage.length) {
-					preimage = Buffer.alloc(2 * (domain.length + text.length));
+			reader.each(chunk, (buf, f) => {
+				const start = f[2 * textAt];
+				const length = f[2 * textAt + 1];
+				if (domain.length + length > preimage.length) {
+					preimage = Buffer.alloc(2 * (domain.length + length));
 					domain.copy(preimage);
 				}
-				text.copy(preimage, domain.length);
-				const digest = hash('sha256', preimage.subarray(0, domain.length + text.length), 'hex');
-				if (digest !== f[hashAt]!.toString('latin1')) throw new Error(`floor: row ${rows + 1} does not verify`);
+				buf.copy(preimage, domain.length, start, start + length);
+				const digest = hash('sha256', preimage.subarray(0, domain.length + length), 'hex');
+				const stored = buf.toString('latin1', f[2 * hashAt], f[2 * hashAt] + f[2 * hashAt + 1]);
+				if (digest !== stored) throw new Error(`floor: row ${rows + 1} does not verify`);
 				rows++;
-			}
+			});
 		}
 		reader.finish();
 		return rows;

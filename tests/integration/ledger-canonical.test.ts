@@ -137,7 +137,7 @@ describe('ledger canonical text', () => {
 
 	it('a COPY that stops part-way closes its connection instead of handing it back to the pool mid-COPY', async () => {
 		const orm = await MikroORM.init(ormOptions(db.appUrl));
-		const push = vi.spyOn(CopyBinaryReader.prototype, 'push').mockImplementationOnce(() => {
+		const each = vi.spyOn(CopyBinaryReader.prototype, 'each').mockImplementationOnce(() => {
 			throw new CopyFormatError('bytes that are not binary COPY (test)');
 		});
 		try {
@@ -153,7 +153,7 @@ describe('ledger canonical text', () => {
 			// And the pool still serves a whole verify.
 			expect((await verifyAll(orm.em.fork())).failed).toBe(0);
 		} finally {
-			push.mockRestore();
+			each.mockRestore();
 			await orm.close(true);
 		}
 	});

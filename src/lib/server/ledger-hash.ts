@@ -96,7 +96,9 @@ export function storedTextHash(r: StoredText): string {
 	const text =
 		typeof r.canonical === 'string'
 			? Buffer.from(r.canonical, 'utf8')
-			: Buffer.from(r.canonical.buffer, r.canonical.byteOffset, r.canonical.byteLength);
+			: Buffer.isBuffer(r.canonical)
+				? r.canonical
+				: Buffer.from(r.canonical.buffer, r.canonical.byteOffset, r.canonical.byteLength);
 	if (!envelopeMatches(text, r)) throw new Error(`The stored text of record ${r.id} is not its envelope.`);
 	const size = DOMAIN.length + text.length;
 	if (size > preimage.length) {

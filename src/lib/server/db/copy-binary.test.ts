@@ -66,6 +66,26 @@ describe('CopyBinaryReader', () => {
 		expect(decode(got)).toEqual(rows);
 	});
 
+	it('hands each row to a callback as offsets into the buffer, NULL as length -1, the same fields push returns', () => {
+		const bytes = encode(rows);
+		for (const cut of [0, 30, 61, bytes.length - 1]) {
+			const reader = new CopyBinaryReader();
+			const got: CopyRow[] = [];
+			const take = (buf: Buffer, fields: Int32Array, count: number) =>
+				got.push(
+					Array.from({ length: count }, (_, f) =>
+						fields[2 * f + 1] === -1
+							? null
+							: Buffer.from(buf.subarray(fields[2 * f], fields[2 * f] + fields[2 * f + 1]))
+					)
+				);
+			reader.each(bytes.subarray(0, cut), take);
+			reader.each(bytes.subarray(cut), take);
+			expect(decode(got)).toEqual(rows);
+			reader.finish();
+		}
+	});
+
 	it('refuses bytes that are not binary COPY, and data that stops before its end marker', () => {
 		expect(() => new CopyBinaryReader().push(Buffer.from('id\trun\n1\t2\n----------------'))).toThrow(CopyFormatError);
 		const cut = new CopyBinaryReader();

@@ -18,6 +18,7 @@ export class CopyBinaryReader {
 	private rest: Buffer = Buffer.alloc(0);
 	private headerRead = false;
 	private ended = false;
+	private fields = new Int32Array(32);
 
 	/** Whether the end-of-data marker has been read. */
 	get done(): boolean {
@@ -26,8 +27,27 @@ export class CopyBinaryReader {
 
 	/** The complete rows in `chunk` and what was left of earlier chunks; a row cut at the end waits for the next. */
 	push(chunk: Buffer): CopyRow[] {
+		const rows: CopyRow[] = [];
+		this.each(chunk, (buf, fields, count) => {
+			const row: CopyRow = new Array(count);
+			for (let f = 0; f < count; f++) {
+				const length = fields[2 * f + 1];
+				row[f] = length === -1 ? null : buf.subarray(fields[2 * f], fields[2 * f] + length);
+			}
+			rows.push(row);
+		});
+		return rows;
+	}
+
+	/**
+	 * {@link push} without a view per field: `onRow` gets the buffer and, for field `f`, its start at
+	 * `fields[2f]` and its length at `fields[2f + 1]` (−1 for NULL), `count` fields in all. The buffer and the array
+	 * are reused: valid only during the call. A view per field cost verify-all a tenth of its time in allocation and
+	 * garbage collection (CPU profile, 1M records).
+	 */
+	each(chunk: Buffer, onRow: (buf: Buffer, fields: Int32Array, count: number) => void): void {
 		if (this.ended) {
-			if (chunk.length === 0) return [];
+			if (chunk.length === 0) return;
 			throw new CopyFormatError('Bytes after the end of the COPY data.');
 		}
 		const buf = this.rest.length === 0 ? chunk : Buffer.concat([this.rest, chunk]);
@@ -35,7 +55,7 @@ export class CopyBinaryReader {
 		if (!this.headerRead) {
 			if (buf.length < SIGNATURE.length + 8) {
 				this.rest = buf;
-				return [];
+				return;
 			}
 			if (buf.compare(SIGNATURE, 0, SIGNATURE.length, 0, SIGNATURE.length) !== 0) {
 				throw new CopyFormatError('The data does not begin with the binary COPY signature.');
@@ -43,51 +63,48 @@ export class CopyBinaryReader {
 			const extension = buf.readUInt32BE(SIGNATURE.length + 4);
 			if (buf.length < SIGNATURE.length + 8 + extension) {
 				this.rest = buf;
-				return [];
+				return;
 			}
 			at = SIGNATURE.length + 8 + extension;
 			this.headerRead = true;
 		}
-		const rows: CopyRow[] = [];
 		for (;;) {
 			if (buf.length - at < 2) break;
-			const fields = buf.readInt16BE(at);
-			if (fields === -1) {
+			const count = buf.readInt16BE(at);
+			if (count === -1) {
 				this.ended = true;
 				if (at + 2 !== buf.length) throw new CopyFormatError('Bytes after the end of the COPY data.');
 				at += 2;
 				break;
 			}
-			if (fields < 0) throw new CopyFormatError(`A row declares ${fields} fields.`);
-			const row: CopyRow = new Array(fields);
+			if (count < 0) throw new CopyFormatError(`A row declares ${count} fields.`);
+			if (2 * count > this.fields.length) this.fields = new Int32Array(2 * count);
+			const fields = this.fields;
 			let p = at + 2;
 			let complete = true;
-			for (let f = 0; f < fields; f++) {
+			for (let f = 0; f < count; f++) {
 				if (buf.length - p < 4) {
 					complete = false;
 					break;
 				}
 				const length = buf.readInt32BE(p);
 				p += 4;
-				if (length === -1) {
-					row[f] = null;
-					continue;
-				}
+				fields[2 * f] = p;
+				fields[2 * f + 1] = length;
+				if (length === -1) continue;
 				if (length < 0) throw new CopyFormatError(`A field declares ${length} bytes.`);
 				if (buf.length - p < length) {
 					complete = false;
 					break;
 				}
-				row[f] = buf.subarray(p, p + length);
 				p += length;
 			}
 			if (!complete) break;
-			rows.push(row);
 			at = p;
+			onRow(buf, fields, count);
 		}
-		// Copied: the views handed out keep the old chunk alive, the rest must not pin it for longer.
+		// Copied: views handed out keep the old chunk alive, the rest must not pin it for longer.
 		this.rest = at === buf.length ? Buffer.alloc(0) : Buffer.from(buf.subarray(at));
-		return rows;
 	}
 
 	/** Throws unless the data ended with its end marker and nothing is left over. */

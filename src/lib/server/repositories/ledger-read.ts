@@ -152,29 +152,27 @@ export async function eachTextRecord(em: EntityManager, onRecord: (record: Store
 		const stream = client.query(copyTo(TEXT_COPY));
 		const reader = new CopyBinaryReader();
 		let failure: { error: unknown } | null = null;
-		// A run's records mostly lie together: its id is decoded once per stretch, not once per record.
-		let runBytes: Buffer | null = null;
-		let runId = '';
+		const text = (buf: Buffer, f: Int32Array, i: number) => buf.toString('latin1', f[2 * i], f[2 * i] + f[2 * i + 1]);
 		async function readRows() {
 			for await (const chunk of stream as AsyncIterable<Buffer>) {
-				for (const f of reader.push(chunk)) {
-					if (failure) continue;
-					if (runBytes === null || !f[0]!.equals(runBytes)) runId = f[0]!.toString('latin1');
-					runBytes = f[0]!;
+				reader.each(chunk, (buf, f, count) => {
+					if (failure) return;
 					try {
+						if (count !== 7 || f[1] === -1 || f[3] !== 4 || f[5] === -1 || f[7] === -1 || f[11] === -1 || f[13] === -1)
+							throw new Error('A ledger row came without one of its chain columns.');
 						onRecord({
-							runId,
-							seq: f[1]!.readInt32BE(0),
-							id: f[2]!.toString('latin1'),
-							kind: f[3]!.toString('latin1') as StoredText['kind'],
-							prevHash: f[4] === null ? null : f[4].toString('latin1'),
-							hash: f[5]!.toString('latin1'),
-							canonical: f[6]!
+							runId: text(buf, f, 0),
+							seq: buf.readInt32BE(f[2]),
+							id: text(buf, f, 2),
+							kind: text(buf, f, 3) as StoredText['kind'],
+							prevHash: f[9] === -1 ? null : text(buf, f, 4),
+							hash: text(buf, f, 5),
+							canonical: buf.subarray(f[12], f[12] + f[13])
 						});
 					} catch (error) {
 						failure = { error };
 					}
-				}
+				});
 			}
 		}
 		try {
