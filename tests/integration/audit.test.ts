@@ -190,6 +190,17 @@ describe('verify: proof that a run’s ledger is unaltered', () => {
 			forged[2].hash
 		]);
 
+		// A kind column that is not the kind in the hashed text, though a misreading of its UTF-8 as latin1 would be.
+		const misread = await runWithRecords();
+		const last = { ...(await stored(misread.runId))[2], kind: 'findingÃ©' as StoredRecord['kind'] };
+		last.hash = recordHash(last);
+		await asSuperuser('update ledger_record set kind = $2, canonical = $3, hash = $4 where id = $1', [
+			last.id,
+			'findingé',
+			canonicalRecord(last),
+			last.hash
+		]);
+
 		const all = await verifyAll(orm.em.fork());
 		const ids = await withClient(urls.ownerUrl, (c) =>
 			c.query<{ id: string }>('select id from run order by created_at')
@@ -207,6 +218,7 @@ describe('verify: proof that a run’s ledger is unaltered', () => {
 			reason: 'anchor_mismatch',
 			position: 3
 		});
+		expect(all.failures.find((f) => f.runId === misread.runId)).toMatchObject({ reason: 'hash_mismatch', position: 3 });
 	});
 
 	it('the quality home lists the run with its records and the open finding; the run record shows the reading', async () => {

@@ -99,6 +99,7 @@ describe('ChainScreen', () => {
 		expect(screen.gaveUp).toBe(true);
 		expect(screen.result(RUNS[0]).intact).toBe(false);
 		expect(screen.result(RUNS[1]).intact).toBe(false);
+		expect(screen.result('a run with no records').intact).toBe(false);
 		expect(screenOf([...b, ...a.slice().reverse()], {}, 4).result(RUNS[0]).intact).toBe(true);
 	});
 

@@ -113,11 +113,12 @@ export class ChainScreen {
 		}
 	}
 
-	/** The verdict on `runId`'s chain (a run with no records is intact and empty). */
+	/** The verdict on `runId`'s chain (a run with no records is intact and empty, unless the screen gave up). */
 	result(runId: string): ScreenResult {
 		const run = this.runs.get(runId);
+		if (this.overflowed) return { intact: false, count: run?.count ?? 0 };
 		if (!run) return { intact: true, count: 0, head: null, heads: new Map() };
-		if (run.broken || this.overflowed || run.ahead?.size) return { intact: false, count: run.count };
+		if (run.broken || run.ahead?.size) return { intact: false, count: run.count };
 		return { intact: true, count: run.count, head: run.last, heads: run.heads };
 	}
 

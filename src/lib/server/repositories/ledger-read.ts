@@ -149,10 +149,21 @@ export const TEXT_COPY =
  */
 export async function eachTextRecord(em: EntityManager, onRecord: (record: StoredText) => void): Promise<void> {
 	await withPooledClient(em, async (client) => {
+		// Without this, a seq scan may start where another one running on the table has got to, so the newest records
+		// come first and the screen holds every later record of the older runs until the scan wraps round.
+		await client.query('begin read only');
+		try {
+			await client.query('set local synchronize_seqscans = off');
+		} catch (error) {
+			await client.query('rollback');
+			throw error;
+		}
 		const stream = client.query(copyTo(TEXT_COPY));
 		const reader = new CopyBinaryReader();
 		let failure: { error: unknown } | null = null;
-		const text = (buf: Buffer, f: Int32Array, i: number) => buf.toString('latin1', f[2 * i], f[2 * i] + f[2 * i + 1]);
+		// UTF-8, as `pg` decodes the same columns for verifyRun: the envelope must be compared with the text the
+		// database holds, not a misreading of it (latin1 would turn a forged non-ASCII kind into the one hashed).
+		const text = (buf: Buffer, f: Int32Array, i: number) => buf.toString('utf8', f[2 * i], f[2 * i] + f[2 * i + 1]);
 		async function readRows() {
 			for await (const chunk of stream as AsyncIterable<Buffer>) {
 				reader.each(chunk, (buf, f, count) => {
@@ -183,6 +194,7 @@ export async function eachTextRecord(em: EntityManager, onRecord: (record: Store
 			await client.end().catch(() => {});
 			throw error;
 		}
+		await client.query('commit');
 		reader.finish();
 		if (failure) throw (failure as { error: unknown }).error;
 	});
