@@ -201,6 +201,15 @@ describe('verify: proof that a run’s ledger is unaltered', () => {
 			last.hash
 		]);
 
+		// An anchor no chain can match, written straight into the table: reported for its run, verify goes on.
+		const badAnchor = await runWithRecords();
+		await withClient(superuser(), (c) =>
+			c.query(
+				`insert into ledger_anchor (id, run_id, head, count, recorded_at, recorded_in) values ($1, $2, $3, 0, now(), 'manual')`,
+				[crypto.randomUUID(), badAnchor.runId, 'f'.repeat(64)]
+			)
+		);
+
 		const all = await verifyAll(orm.em.fork());
 		const ids = await withClient(urls.ownerUrl, (c) =>
 			c.query<{ id: string }>('select id from run order by created_at')
@@ -219,6 +228,10 @@ describe('verify: proof that a run’s ledger is unaltered', () => {
 			position: 3
 		});
 		expect(all.failures.find((f) => f.runId === misread.runId)).toMatchObject({ reason: 'hash_mismatch', position: 3 });
+		expect(all.failures.find((f) => f.runId === badAnchor.runId)).toMatchObject({
+			reason: 'anchor_invalid',
+			recordId: null
+		});
 	});
 
 	it('the quality home lists the run with its records and the open finding; the run record shows the reading', async () => {

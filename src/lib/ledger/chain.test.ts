@@ -231,7 +231,11 @@ describe('verifyAgainstAnchor', () => {
 		expect(f.message).toMatch(/digest 2/);
 	});
 
-	it('refuses a meaningless anchor', () => {
-		expect(() => verifyAgainstAnchor(chain, { head: chain[0].hash, count: 0, at: 'x' })).toThrow(/at least one/);
+	it('reports an anchor whose count no chain can have as a failure of that chain, not as an error', () => {
+		for (const count of [0, -1, 1.5]) {
+			const f = failure(verifyAgainstAnchor(chain, { head: chain[0].hash, count, at: 'digest 9' }));
+			expect([f.index, f.recordId, f.reason, f.found]).toEqual([0, null, 'anchor_invalid', String(count)]);
+			expect(f.message).toMatch(/digest 9.*written directly into the database/);
+		}
 	});
 });

@@ -76,7 +76,9 @@ export type ChainFailureReason =
 	/** The chain's head at the anchor's count is not the anchored head (alter-and-rehash). */
 	| 'anchor_mismatch'
 	/** The chain is shorter than it was when the anchor was taken. */
-	| 'anchor_missing_records';
+	| 'anchor_missing_records'
+	/** An anchor's count is no count a chain can have: the anchor itself was written outside the app. */
+	| 'anchor_invalid';
 
 /** The chain is intact: `head` is the last record's hash (null for an empty chain), `count` its length. */
 export interface ChainIntact {
@@ -268,7 +270,14 @@ export function verifyAgainstAnchors(
 	if (!chain.ok) return chain;
 	for (const anchor of [...anchors].sort((a, b) => a.count - b.count)) {
 		if (!Number.isInteger(anchor.count) || anchor.count < 1) {
-			throw new Error(`An anchor counts at least one record; got ${anchor.count}.`);
+			return fail(
+				0,
+				null,
+				'anchor_invalid',
+				'a count of 1 or more',
+				String(anchor.count),
+				`The anchor of ${anchor.at} says the chain had ${anchor.count} records, which no chain can have: the app never writes such an anchor, so it was written directly into the database — investigate the anchors and the ledger.`
+			);
 		}
 		const index = anchor.count - 1;
 		if (records.length < anchor.count) {
