@@ -172,6 +172,13 @@ export async function verifyAll(em: EntityManager): Promise<AllVerification> {
 	return out;
 }
 
+/** The job number of each of `runIds` that exists, by run id. */
+export async function jobNumbersOf(em: EntityManager, runIds: string[]): Promise<Record<string, string>> {
+	if (!runIds.length) return {};
+	const runs = await em.find(Run, { id: { $in: runIds } }, { populate: ['job'] });
+	return Object.fromEntries(runs.map((r) => [r.id, (r.job as unknown as IJob).jobNumber]));
+}
+
 export type AnchorResult =
 	| { ok: true; value: { runId: string; head: string; count: number; recordedIn: AnchorPlace } }
 	| { ok: false; status: 404 | 409; message: string };
