@@ -6,6 +6,7 @@ import { canonicalRecord, recordHash, type StoredRecord } from '../../src/lib/le
 import type { IUser } from '../../src/lib/server/db/entities';
 import * as ledger from '../../src/lib/server/repositories/ledger';
 import {
+	jobNumbersOf,
 	openFindings,
 	recordAnchor,
 	reviewQueue,
@@ -228,6 +229,12 @@ describe('verify: proof that a run’s ledger is unaltered', () => {
 			position: 3
 		});
 		expect(all.failures.find((f) => f.runId === misread.runId)).toMatchObject({ reason: 'hash_mismatch', position: 3 });
+		// The API names each failing run's unit by its job number.
+		const jobs = await jobNumbersOf(orm.em.fork(), [misread.runId, crypto.randomUUID()]);
+		const [job] = await withClient(urls.ownerUrl, (c) =>
+			c.query<{ job_number: string }>('select job_number from job where id = $1', [misread.jobId])
+		).then((r) => r.rows);
+		expect(jobs).toEqual({ [misread.runId]: job.job_number });
 		expect(all.failures.find((f) => f.runId === badAnchor.runId)).toMatchObject({
 			reason: 'anchor_invalid',
 			recordId: null
