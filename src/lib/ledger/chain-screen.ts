@@ -56,7 +56,7 @@ export class ChainScreen {
 	/**
 	 * @param anchorsOf the counts at which a run was anchored, whose heads {@link result} must report
 	 * @param maxAhead how many out-of-order records may wait at once before the screen gives up (memory bound); then
-	 *   {@link overflowed} is true and every result is "not intact", so the caller checks every run in order
+	 *   {@link gaveUp} is true and every result is "not intact", so the caller checks every run in order
 	 */
 	constructor(
 		private readonly anchorsOf: (runId: string) => ReadonlySet<number> | undefined,
