@@ -3,6 +3,7 @@
  * never colour alone. Times are the tablet's clock.
  */
 import type { SyncState } from '$lib/client/outbox';
+import { plural } from '$lib/utils/plural';
 
 export type SyncTone = 'pass' | 'warn' | 'fail' | 'info';
 
@@ -23,8 +24,6 @@ export function ago(at: number, now: number): string {
 	if (hours < 24) return `${hours} h ${minutes % 60} min ago`;
 	return `on ${new Date(at).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
 }
-
-const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
 
 export function syncWords(s: SyncState, now: number, online: boolean): SyncWords {
 	const lines: string[] = [];
