@@ -41,7 +41,7 @@ interface RunState {
 	ids: Set<number>;
 }
 
-/** 32-bit FNV-1a of the string's UTF-16 code units (FNV offset basis and prime as published by its authors). */
+/** 32-bit FNV-1a of the string's UTF-16 code units: offset basis 2166136261, prime 16777619 (FNV-1a as in IETF draft-eastlake-fnv, from memory). */
 function idKey(id: string): number {
 	let h = 0x811c9dc5;
 	for (let i = 0; i < id.length; i++) h = Math.imul(h ^ id.charCodeAt(i), 0x01000193);
